@@ -1,0 +1,36 @@
+import type { Handle, HandleServerError } from '@sveltejs/kit';
+import {
+	clearSessionCookie,
+	sessionCookieName,
+	setSessionCookie,
+	validateSession
+} from '$lib/server/auth/session';
+
+export const handle: Handle = async ({ event, resolve }) => {
+	const token = event.cookies.get(sessionCookieName);
+	event.locals.user = null;
+	event.locals.session = null;
+	if (token) {
+		const { session, user, renewed } = await validateSession(token);
+		if (session && user) {
+			event.locals.user = user;
+			event.locals.session = session;
+			if (renewed) setSessionCookie(event.cookies, session, event.url.protocol === 'https:');
+		} else {
+			clearSessionCookie(event.cookies);
+		}
+	}
+	const response = await resolve(event);
+	response.headers.set('X-Content-Type-Options', 'nosniff');
+	response.headers.set('Referrer-Policy', 'same-origin');
+	response.headers.set('X-Frame-Options', 'DENY');
+	return response;
+};
+
+// Unexpected errors are logged with an id; people see the id, never the message, stack or SQL.
+export const handleError: HandleServerError = ({ error, event, status, message }) => {
+	if (status === 404) return { message };
+	const id = crypto.randomUUID().slice(0, 8);
+	console.error(`[error ${id}] ${event.request.method} ${event.url.pathname}`, error);
+	return { message: 'Something went wrong on our side.', id };
+};

@@ -1,0 +1,76 @@
+import { isHttpError, isRedirect } from '@sveltejs/kit';
+import { describe, expect, test } from 'vitest';
+import { eventFor, join, makeFarm, makeUser } from '$lib/server/testing/fixtures';
+import { may, mayOpen, requireMember, requireRole, requireUser } from './guard';
+
+async function statusOf(promise: Promise<unknown>) {
+	try {
+		await promise;
+		return 200;
+	} catch (e) {
+		if (isHttpError(e)) return e.status;
+		if (isRedirect(e)) return e.status;
+		throw e;
+	}
+}
+
+describe('what each role may open (DESIGN.md roles table)', () => {
+	test('only managers open the team and savings', () => {
+		expect(mayOpen('manager', 'team')).toBe(true);
+		for (const role of ['agronomist', 'operator', 'landlord'] as const) {
+			expect(mayOpen(role, 'team')).toBe(false);
+			expect(mayOpen(role, 'savings')).toBe(false);
+		}
+	});
+	test('operators see no prices; landlords see only season summaries', () => {
+		expect(may('operator', 'prices.view')).toBe(false);
+		expect(may('manager', 'prices.view')).toBe(true);
+		expect(mayOpen('landlord', 'summaries')).toBe(true);
+		for (const area of ['overview', 'map', 'fields', 'uploads', 'records', 'catalogue'] as const) {
+			expect(mayOpen('landlord', area)).toBe(false);
+		}
+	});
+});
+
+describe('the guard against the database', () => {
+	test('no user: a page redirects to sign-in, an API answers 401', async () => {
+		expect(() => requireUser(eventFor(null, {}, '/x'))).toThrow();
+		expect(await statusOf(requireMember(eventFor(null, { farm: 'any' }), { api: true }))).toBe(401);
+		expect(await statusOf(requireMember(eventFor(null, { farm: 'any' })))).toBe(303);
+	});
+
+	test('a member gets their role; a non-member of an existing farm gets 404 like a missing farm', async () => {
+		const farm = await makeFarm();
+		const operator = await makeUser();
+		const outsider = await makeUser();
+		await join(farm.id, operator.id, 'operator');
+
+		const actor = await requireMember(eventFor(operator, { farm: farm.slug }));
+		expect(actor.role).toBe('operator');
+		expect(actor.farm.id).toBe(farm.id);
+		expect(await statusOf(requireMember(eventFor(outsider, { farm: farm.slug })))).toBe(404);
+		expect(await statusOf(requireMember(eventFor(outsider, { farm: 'no-such-farm' })))).toBe(404);
+	});
+
+	test('a role outside the allowed list gets 403', async () => {
+		const farm = await makeFarm();
+		const operator = await makeUser();
+		const manager = await makeUser();
+		await join(farm.id, operator.id, 'operator');
+		await join(farm.id, manager.id, 'manager');
+		expect(await statusOf(requireRole(eventFor(operator, { farm: farm.slug }), 'team'))).toBe(403);
+		expect(await statusOf(requireRole(eventFor(operator, { farm: farm.slug }), 'team', { api: true }))).toBe(403);
+		expect(await statusOf(requireRole(eventFor(manager, { farm: farm.slug }), 'team'))).toBe(200);
+		expect(await statusOf(requireRole(eventFor(operator, { farm: farm.slug }), ['manager', 'operator']))).toBe(200);
+	});
+
+	test('a role is per farm: the same person can be a manager in one and a landlord in another', async () => {
+		const a = await makeFarm();
+		const b = await makeFarm();
+		const person = await makeUser();
+		await join(a.id, person.id, 'manager');
+		await join(b.id, person.id, 'landlord');
+		expect(await statusOf(requireRole(eventFor(person, { farm: a.slug }), 'team'))).toBe(200);
+		expect(await statusOf(requireRole(eventFor(person, { farm: b.slug }), 'team'))).toBe(403);
+	});
+});

@@ -1,0 +1,4 @@
+export * from './auth';
+export * from './farms';
+export * from './fields';
+export * from './audit';
