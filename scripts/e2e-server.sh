@@ -1,0 +1,12 @@
+#!/usr/bin/env bash
+# The server Playwright starts: a fresh e2e database with the demo farm, then the built app.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+bash scripts/db.sh recreate patchbook_e2e
+export DATABASE_URL=$(bash scripts/db.sh url patchbook_e2e)
+node scripts/migrate.js
+npx tsx scripts/seed.ts
+npx tsx tests/e2e/seed-e2e.ts
+export HOST=127.0.0.1 PORT=${E2E_PORT:-4173} BODY_SIZE_LIMIT=Infinity
+export ORIGIN=http://$HOST:$PORT
+exec node build

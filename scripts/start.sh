@@ -1,0 +1,32 @@
+#!/usr/bin/env bash
+# npm start: from a fresh clone to the running app with the demo farm loaded.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+bash scripts/ensure-deps.sh
+bash scripts/db.sh start
+export DATABASE_URL=${DATABASE_URL:-$(bash scripts/db.sh url patchbook)}
+node scripts/migrate.js
+npx tsx scripts/seed.ts
+
+# Build when there is no build or any source is newer than it.
+if [ ! -f build/index.js ] || [ -n "$(find src static svelte.config.js vite.config.ts package-lock.json -newer build/index.js -print -quit)" ]; then
+	echo "start: building the app..."
+	npx vite build --logLevel warn
+fi
+
+export HOST=${HOST:-127.0.0.1} PORT=${PORT:-3000}
+export ORIGIN=${ORIGIN:-http://$HOST:$PORT}
+export BODY_SIZE_LIMIT=${BODY_SIZE_LIMIT:-Infinity}
+cat <<MSG
+
+Patchbook is running at $ORIGIN
+Demo sign-ins (password for all: patchbook-demo):
+  manager     mara@tallowgrass.example
+  agronomist  dev@fieldwise-agronomy.example   (also in a second farm)
+  operator    sam@tallowgrass.example
+  landlord    helen.marsh@landowner.example
+Stop with Ctrl-C; the database keeps running until 'npm run db:stop'.
+
+MSG
+exec node build

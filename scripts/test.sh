@@ -1,0 +1,30 @@
+#!/usr/bin/env bash
+# npm test: the whole set-up on separate databases, then every test runner; ends with one line
+# "N passed, N failed" that totals them.
+set -uo pipefail
+cd "$(dirname "$0")/.."
+bash scripts/ensure-deps.sh --browser || exit 1
+
+was_running=0
+bash scripts/db.sh status >/dev/null 2>&1 && was_running=1
+bash scripts/db.sh start || exit 1
+[ "$was_running" = 1 ] || trap 'bash scripts/db.sh stop' EXIT
+
+reports=$(mktemp -d)
+status=0
+
+echo "== type check (svelte-check)"
+npm run --silent check || status=1
+
+echo "== unit and integration tests (vitest)"
+npx vitest run --reporter=default --reporter=json --outputFile.json="$reports/vitest.json" || status=1
+
+echo "== build"
+npx vite build --logLevel warn || status=1
+
+echo "== end-to-end tests (playwright, Debian chromium)"
+PLAYWRIGHT_JSON_OUTPUT_NAME="$reports/playwright.json" npx playwright test --reporter=list,json || status=1
+
+node scripts/test-summary.js "$reports/vitest.json" "$reports/playwright.json"
+[ $? = 0 ] || status=1
+exit $status

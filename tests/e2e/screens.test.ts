@@ -1,0 +1,38 @@
+// Screenshots of every page each role can open, on a desktop and a phone, for people to look at.
+// Each also checks the page rendered its heading and nothing overflows the phone's width.
+import { expect, test } from '@playwright/test';
+import { people, signIn } from './helpers';
+
+const pages = {
+	manager: ['', '/map', '/fields', '/uploads', '/records', '/savings', '/catalogue', '/team', '/summaries'],
+	agronomist: ['', '/catalogue'],
+	operator: ['', '/uploads', '/catalogue'],
+	landlord: ['/summaries']
+} as const;
+const viewports = { desktop: { width: 1280, height: 800 }, phone: { width: 390, height: 844 } };
+
+for (const [name, size] of Object.entries(viewports)) {
+	for (const [role, paths] of Object.entries(pages)) {
+		test(`${role} pages on a ${name}`, async ({ page }) => {
+			await page.setViewportSize(size);
+			await signIn(page, people[role as keyof typeof pages]);
+			for (const path of [...paths, '/account']) {
+				await page.goto(path === '/account' ? '/account' : `/tallowgrass${path}`);
+				await expect(page.getByRole('heading', { level: 1 })).toBeVisible();
+				const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+				expect(overflow, `horizontal overflow on ${path}`).toBeLessThanOrEqual(0);
+				const file = `${role}-${(path || '/overview').slice(1)}-${name}.png`;
+				await page.screenshot({ path: `tests/screenshots/${file}`, fullPage: true });
+			}
+		});
+	}
+}
+
+test('sign-in page on a phone', async ({ page }) => {
+	await page.setViewportSize(viewports.phone);
+	await page.goto('/login');
+	await page.screenshot({ path: 'tests/screenshots/login-phone.png' });
+	await page.setViewportSize(viewports.desktop);
+	await page.screenshot({ path: 'tests/screenshots/login-desktop.png' });
+	await expect(page.getByRole('button', { name: 'Sign in' })).toBeVisible();
+});
