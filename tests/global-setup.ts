@@ -13,10 +13,9 @@ export default function setup(project: TestProject) {
 			return false;
 		}
 	})();
-	db('recreate', 'patchbook_vitest');
-	const url = db('url', 'patchbook_vitest');
+	const url = process.env.DATABASE_URL!; // set in vite.config.ts
+	db('recreate', new URL(url).pathname.slice(1));
 	execFileSync('node', ['scripts/migrate.js'], { env: { ...process.env, DATABASE_URL: url }, stdio: 'inherit' });
-	process.env.DATABASE_URL = url;
 	project.provide('databaseUrl', url);
 	return () => {
 		if (!wasRunning) db('stop');
