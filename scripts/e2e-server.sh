@@ -2,8 +2,9 @@
 # The server Playwright starts: a fresh e2e database with the demo farm, then the built app.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-bash scripts/db.sh recreate patchbook_e2e
-export DATABASE_URL=$(bash scripts/db.sh url patchbook_e2e)
+db=${E2E_DB:-patchbook_e2e}
+bash scripts/db.sh recreate "$db"
+export DATABASE_URL=$(bash scripts/db.sh url "$db")
 node scripts/migrate.js
 npx tsx scripts/seed.ts
 npx tsx tests/e2e/seed-e2e.ts
