@@ -5,6 +5,10 @@ export const farms = pgTable('farms', {
 	id: uuid().primaryKey().defaultRandom(),
 	slug: text().notNull().unique(),
 	name: text().notNull(),
+	/** IANA zone: an application is one field on one local day. */
+	timeZone: text().notNull().default('UTC'),
+	/** ISO 4217 code of the prices entered in the catalogue. */
+	currency: text().notNull().default('USD'),
 	createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 });
 export type Farm = typeof farms.$inferSelect;

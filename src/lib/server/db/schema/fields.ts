@@ -1,5 +1,5 @@
 import type { MultiPolygon, Polygon } from 'geojson';
-import { index, jsonb, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { doublePrecision, index, integer, jsonb, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
 import { users } from './auth';
 import { farms } from './farms';
 
@@ -12,7 +12,19 @@ export const fields = pgTable(
 			.references(() => farms.id, { onDelete: 'cascade' }),
 		name: text().notNull(),
 		boundary: jsonb().$type<Polygon | MultiPolygon>().notNull(), // GeoJSON, [lng, lat]
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		/** Ellipsoidal (WGS84) area of the boundary. */
+		areaM2: doublePrecision().notNull(),
+		// The grid is fixed when the field is made, so a cell means the same ground every season
+		// even after the boundary is edited.
+		gridProj: text().notNull(),
+		gridEpsg: integer(),
+		gridCellM: doublePrecision().notNull().default(10),
+		gridOriginX: doublePrecision().notNull(),
+		gridOriginY: doublePrecision().notNull(),
+		gridCols: integer().notNull(),
+		gridRows: integer().notNull(),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 	},
 	(t) => [index().on(t.farmId)]
 );
