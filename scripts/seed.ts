@@ -2,6 +2,7 @@
 // grant. Idempotent: a farm that exists already is left as it is.
 import { eq } from 'drizzle-orm';
 import type { Polygon } from 'geojson';
+import { fieldGeometryColumns } from '../src/lib/geo/field-geometry';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { createDb } from '../src/lib/server/db/create';
 import { farms, fields, landlordGrants, memberships, users, type Role } from '../src/lib/server/db/schema';
@@ -50,10 +51,10 @@ export async function seed(url: string): Promise<{ created: boolean }> {
 		await db.transaction(async (tx) => {
 			await tx.insert(users).values(demoUsers.map((u) => ({ ...u, passwordHash }))).onConflictDoNothing();
 			for (const farm of demoFarms) {
-				const [row] = await tx.insert(farms).values({ slug: farm.slug, name: farm.name }).returning();
+				const [row] = await tx.insert(farms).values({ slug: farm.slug, name: farm.name, timeZone: 'America/Los_Angeles' }).returning();
 				await tx.insert(memberships).values(farm.members.map(([userId, role]) => ({ farmId: row.id, userId, role })));
 				for (const f of demoFields[farm.slug] ?? []) {
-					const [field] = await tx.insert(fields).values({ farmId: row.id, name: f.name, boundary: f.boundary }).returning();
+					const [field] = await tx.insert(fields).values({ farmId: row.id, name: f.name, ...fieldGeometryColumns(f.boundary) }).returning();
 					if (f.landlord) await tx.insert(landlordGrants).values({ farmId: row.id, userId: f.landlord, fieldId: field.id });
 				}
 			}

@@ -3,6 +3,7 @@ import type { RequestEvent } from '@sveltejs/kit';
 import { db } from '$lib/server/db';
 import { farms, fields, landlordGrants, memberships, users, type Role } from '$lib/server/db/schema';
 import { hashPassword } from '$lib/server/auth/password';
+import { fieldGeometryColumns } from '$lib/geo/field-geometry';
 import type { SessionUser } from '$lib/server/auth/session';
 
 let counter = 0;
@@ -28,7 +29,11 @@ export async function join(farmId: string, userId: string, role: Role) {
 export async function makeField(farmId: string, name: string) {
 	const [field] = await db
 		.insert(fields)
-		.values({ farmId, name, boundary: { type: 'Polygon', coordinates: [[[0, 0], [0.01, 0], [0.01, 0.01], [0, 0]]] } })
+		.values({
+			farmId,
+			name,
+			...fieldGeometryColumns({ type: 'Polygon', coordinates: [[[0, 0], [0.01, 0], [0.01, 0.01], [0, 0]]] })
+		})
 		.returning();
 	return field;
 }
