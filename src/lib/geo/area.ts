@@ -9,7 +9,7 @@ function ringAreaM2(ring: Position[]): number {
 	const last = ring.length - 1;
 	const closed = last > 0 && ring[0][0] === ring[last][0] && ring[0][1] === ring[last][1];
 	for (let i = 0; i < (closed ? last : ring.length); i++) polygon.AddPoint(ring[i][1], ring[i][0]);
-	return Math.abs(polygon.Compute(false, true).area);
+	return Math.abs(polygon.Compute(false, true).area ?? 0);
 }
 
 /**
