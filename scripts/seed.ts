@@ -5,7 +5,18 @@ import type { Polygon } from 'geojson';
 import { fieldGeometryColumns } from '../src/lib/geo/field-geometry';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { createDb } from '../src/lib/server/db/create';
-import { farms, fields, landlordGrants, memberships, users, type Role } from '../src/lib/server/db/schema';
+import {
+	farms,
+	fields,
+	landlordGrants,
+	machines,
+	memberships,
+	products,
+	tankMixProducts,
+	tankMixes,
+	users,
+	type Role
+} from '../src/lib/server/db/schema';
 
 export const demoPassword = 'patchbook-demo';
 
@@ -42,6 +53,22 @@ const demoFields: Record<string, { name: string; boundary: Polygon; landlord?: s
 	'brennan-creek': [{ name: 'Creek Bottom', boundary: rectangle(-118.05, 47.2, 0.02, 0.01) }]
 };
 
+// Invented catalogue. Registration numbers are made up and marked so; rates and prices are
+// plausible for fallow knockdowns (common practice, no source), not advice.
+const perHa = (v: number) => v / 1e4;
+const demoCatalogue = {
+	machines: [
+		{ name: 'Spot sprayer 36.6 m', boomWidthM: 36.576, nozzleCount: 144, nozzleSpacingM: 0.254, nozzlesPerSensor: 4, nozzleFlowLPerS: 1.5 / 60, referencePressurePa: 3e5 }
+	],
+	products: [
+		{ key: 'gly', name: 'Glyphosate 540 (demo)', registrationNumber: 'DEMO-REG-0001 (fictitious)', unit: 'L' as const, pricePerUnit: 7.4 },
+		{ key: 'dic', name: 'Dicamba 480 (demo)', registrationNumber: 'DEMO-REG-0002 (fictitious)', unit: 'L' as const, pricePerUnit: 21.5 }
+	],
+	tankMixes: [
+		{ name: 'Fallow knockdown', carrierRateLPerM2: perHa(100), rates: { gly: perHa(1.5), dic: perHa(0.3) } }
+	]
+};
+
 export async function seed(url: string): Promise<{ created: boolean }> {
 	const { db, client } = createDb(url, { max: 2 });
 	try {
@@ -53,6 +80,20 @@ export async function seed(url: string): Promise<{ created: boolean }> {
 			for (const farm of demoFarms) {
 				const [row] = await tx.insert(farms).values({ slug: farm.slug, name: farm.name, timeZone: 'America/Los_Angeles' }).returning();
 				await tx.insert(memberships).values(farm.members.map(([userId, role]) => ({ farmId: row.id, userId, role })));
+				if (farm.slug === 'tallowgrass') {
+					await tx.insert(machines).values(demoCatalogue.machines.map((m) => ({ ...m, farmId: row.id })));
+					const made = new Map<string, string>();
+					for (const { key, ...p } of demoCatalogue.products) {
+						const [product] = await tx.insert(products).values({ ...p, farmId: row.id }).returning();
+						made.set(key, product.id);
+					}
+					for (const { rates, ...mix } of demoCatalogue.tankMixes) {
+						const [tankMix] = await tx.insert(tankMixes).values({ ...mix, farmId: row.id }).returning();
+						await tx.insert(tankMixProducts).values(
+							Object.entries(rates).map(([key, ratePerM2]) => ({ tankMixId: tankMix.id, productId: made.get(key)!, ratePerM2 }))
+						);
+					}
+				}
 				for (const f of demoFields[farm.slug] ?? []) {
 					const [field] = await tx.insert(fields).values({ farmId: row.id, name: f.name, ...fieldGeometryColumns(f.boundary) }).returning();
 					if (f.landlord) await tx.insert(landlordGrants).values({ farmId: row.id, userId: f.landlord, fieldId: field.id });

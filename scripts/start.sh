@@ -12,7 +12,7 @@ npx tsx scripts/seed.ts
 # Build when there is no build or any source is newer than it.
 if [ ! -f build/index.js ] || [ -n "$(find src static svelte.config.js vite.config.ts package-lock.json -newer build/index.js -print -quit)" ]; then
 	echo "start: building the app..."
-	npx vite build --logLevel warn
+	npm run --silent build
 fi
 
 export HOST=${HOST:-127.0.0.1} PORT=${PORT:-3000}

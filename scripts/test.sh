@@ -20,7 +20,7 @@ echo "== unit and integration tests (vitest)"
 npx vitest run --reporter=default --reporter=json --outputFile.json="$reports/vitest.json" || status=1
 
 echo "== build"
-npx vite build --logLevel warn || status=1
+npm run --silent build || status=1
 
 echo "== end-to-end tests (playwright, Debian chromium)"
 PLAYWRIGHT_JSON_OUTPUT_NAME="$reports/playwright.json" npx playwright test --reporter=list,json || status=1

@@ -1,10 +1,24 @@
-import type { Handle, HandleServerError } from '@sveltejs/kit';
+import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
+import { building } from '$app/environment';
+import { env } from '$env/dynamic/private';
+import { startWorker, stopWorker } from '$lib/server/jobs/worker-process';
+import { stopQueue } from '$lib/server/jobs/app-queue';
 import {
 	clearSessionCookie,
 	sessionCookieName,
 	setSessionCookie,
 	validateSession
 } from '$lib/server/auth/session';
+
+export const init: ServerInit = () => {
+	if (building) return;
+	startWorker({ DATABASE_URL: env.DATABASE_URL, PATCHBOOK_WORKER: env.PATCHBOOK_WORKER });
+	// adapter-node's graceful shutdown: let the worker finish its job and close the queue.
+	process.once('sveltekit:shutdown', () => {
+		stopWorker();
+		void stopQueue();
+	});
+};
 
 export const handle: Handle = async ({ event, resolve }) => {
 	const token = event.cookies.get(sessionCookieName);

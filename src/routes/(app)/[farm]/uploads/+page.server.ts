@@ -1,7 +1,8 @@
-import { requireRole } from '$lib/server/auth/guard';
+import { may, requireRole } from '$lib/server/auth/guard';
+import * as uploads from '$lib/server/uploads';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
-	await requireRole(event, 'uploads');
-	return {};
+	const actor = await requireRole(event, 'uploads');
+	return { uploads: await uploads.list(actor), canUpload: may(actor.role, 'uploads.create') };
 };
