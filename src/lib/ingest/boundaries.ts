@@ -310,10 +310,17 @@ function readShapefile(file: string, entries: Map<string, Uint8Array>, opts: Bou
 function readXml(file: string, format: 'kml' | 'gpx', bytes: Uint8Array): Parsed {
 	const { text } = decodeBytes(bytes);
 	let doc;
+	let problem: string | null = null;
 	try {
-		doc = new DOMParser().parseFromString(text, 'text/xml');
+		// Errors become exceptions (with the parser's own message) instead of console noise.
+		const onError = (level: string, message: string) => {
+			if (level === 'warning') return;
+			problem ??= message.trim();
+			throw new Error(message);
+		};
+		doc = new DOMParser({ onError }).parseFromString(text, 'text/xml');
 	} catch (err) {
-		throw new IngestError(file, `is not well-formed XML (${err instanceof Error ? err.message.split('\n')[0] : err})`);
+		throw new IngestError(file, `is not well-formed XML (${problem ?? (err instanceof Error ? err.message.split('\n')[0] : err)})`);
 	}
 	const root = doc.documentElement?.nodeName.toLowerCase().replace(/^.*:/, '');
 	if (root !== format) throw new IngestError(file, `is not a ${format.toUpperCase()} document (its root element is <${root ?? 'none'}>)`);
