@@ -37,15 +37,18 @@ async function decodeStream(chunks: AsyncIterable<Uint8Array>): Promise<TextStre
 	const { encoding, hasBom } = detectEncoding(joined);
 	const decoder = new ChunkDecoder(encoding);
 	async function* texts() {
-		yield decoder.decode(joined);
-		if (!done) {
-			for (;;) {
+		try {
+			yield decoder.decode(joined);
+			while (!done) {
 				const r = await it.next();
-				if (r.done) break;
-				yield decoder.decode(r.value);
+				if (r.done) done = true;
+				else yield decoder.decode(r.value);
 			}
+			yield decoder.end();
+		} finally {
+			// Stopping early (the header read) releases the source, e.g. closes a file stream.
+			if (!done) await it.return?.();
 		}
-		yield decoder.end();
 	}
 	return { encoding, hasBom, texts: texts(), replaced: () => decoder.replaced };
 }

@@ -110,6 +110,16 @@ describe('readLog on CSV', () => {
 		expect([r.fixes!.lng[0], r.fixes!.lat[0]].map((v) => +v.toFixed(8))).toEqual([-60.5, -34.25]);
 	});
 
+	test('x/y with a proj4 string instead of an EPSG code', async () => {
+		const text = 'time,x,y,nozzles\n2024-05-14T15:00:00Z,542284.650518507,4262625.44285847,10000001\n';
+		const crs = '+proj=utm +zone=14 +datum=WGS84 +units=m +no_defs';
+		const r = await read(text, { ...base, position: { kind: 'xy', x: 'x', y: 'y', crs } });
+		// Same PROJ (gdaltransform, GDAL 3.6.2) point as above.
+		expect([r.fixes!.lng[0], r.fixes!.lat[0]].map((v) => +v.toFixed(8))).toEqual([-98.515, 38.511]);
+		const bad = await read(text, { ...base, position: { kind: 'xy', x: 'x', y: 'y', crs: 99999 } });
+		expect(bad.errors[0].message).toBe('EPSG:99999 is not supported; give a proj4 definition instead');
+	});
+
 	test('x/y without an EPSG code is refused before reading', async () => {
 		const r = await read(csv, { ...base, position: { kind: 'xy', x: 'lon', y: 'lat', crs: null } });
 		expect(r.errors[0].message).toMatch(/need a coordinate system: choose an EPSG code/);
@@ -271,4 +281,24 @@ describe('readLog on CSV', () => {
 		expect(r.errors).toHaveLength(51);
 		expect(r.errors[50].message).toBe('and 30 more problems not listed');
 	});
+});
+
+test('reading the header stops early and releases the source', async () => {
+	let closed = false;
+	let pulled = 0;
+	async function* source() {
+		try {
+			yield utf8('time,lat,lon,nozzles\n');
+			for (let i = 0; i < 10_000; i++) {
+				pulled++;
+				yield utf8(`2024-05-14T15:00:00Z,38.511,-98.515,10000001\n`.repeat(100));
+			}
+		} finally {
+			closed = true;
+		}
+	}
+	const h = await readLogHeader('log.csv', source());
+	expect(h.preview).toHaveLength(20);
+	expect(closed).toBe(true);
+	expect(pulled).toBeLessThan(1000);
 });

@@ -38,11 +38,16 @@ export function logKindOf(fileName: string, firstBytes: Uint8Array): LogKind {
 
 /** Puts back the first chunk after sniffing it. */
 async function* prepend(first: Uint8Array, rest: AsyncIterator<Uint8Array>): AsyncIterable<Uint8Array> {
-	yield first;
-	for (;;) {
-		const r = await rest.next();
-		if (r.done) return;
-		yield r.value;
+	let done = false;
+	try {
+		yield first;
+		for (;;) {
+			const r = await rest.next();
+			if (r.done) return void (done = true);
+			yield r.value;
+		}
+	} finally {
+		if (!done) await rest.return?.();
 	}
 }
 
