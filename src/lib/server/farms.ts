@@ -4,7 +4,7 @@ import { farms, memberships, users, type Role } from '$lib/server/db/schema';
 
 export async function membershipFor(userId: string, slug: string) {
 	const rows = await db
-		.select({ role: memberships.role, farm: { id: farms.id, slug: farms.slug, name: farms.name } })
+		.select({ role: memberships.role, farm: { id: farms.id, slug: farms.slug, name: farms.name, currency: farms.currency } })
 		.from(memberships)
 		.innerJoin(farms, eq(farms.id, memberships.farmId))
 		.where(and(eq(memberships.userId, userId), eq(farms.slug, slug)));

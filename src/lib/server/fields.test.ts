@@ -21,7 +21,7 @@ test('a landlord lists only granted fields; a manager lists all the farm’s and
 	await makeField(other.id, 'Elsewhere');
 	await grant(farm.id, landlord.id, a.id);
 
-	const farmRef = { id: farm.id, slug: farm.slug, name: farm.name };
+	const farmRef = { id: farm.id, slug: farm.slug, name: farm.name, currency: farm.currency };
 	expect((await list({ user: manager, farm: farmRef, role: 'manager' })).map((f) => f.name)).toEqual(['A', 'B']);
 	expect((await list({ user: landlord, farm: farmRef, role: 'landlord' })).map((f) => f.name)).toEqual(['A']);
 });
@@ -41,7 +41,7 @@ async function managerOfNewFarm(): Promise<Actor> {
 	const farm = await makeFarm();
 	const user = await makeUser();
 	await join(farm.id, user.id, 'manager');
-	return { user, farm: { id: farm.id, slug: farm.slug, name: farm.name }, role: 'manager' };
+	return { user, farm: { id: farm.id, slug: farm.slug, name: farm.name, currency: farm.currency }, role: 'manager' };
 }
 
 async function auditOf(farmId: string) {

@@ -8,7 +8,7 @@ import type { SessionUser } from './session';
 
 export type Actor = {
 	user: SessionUser;
-	farm: { id: string; slug: string; name: string };
+	farm: { id: string; slug: string; name: string; currency: string };
 	role: Role;
 };
 

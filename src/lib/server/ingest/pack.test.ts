@@ -1,6 +1,7 @@
 import { expect, test } from 'vitest';
 import type { FixColumns } from '$lib/compute/types';
-import { concatFixes, packFixes, selectFixes, unpackFixes } from './pack';
+import { selectFixes } from '$lib/compute/clean-fixes';
+import { concatFixes, packFixes, unpackFixes } from './pack';
 
 function log(n: number, t0: number): FixColumns {
 	const bits = new Uint32Array(n * 5);
@@ -32,7 +33,7 @@ test('packing and unpacking keeps every column bit for bit', () => {
 test('selecting and joining logs orders fixes by time and carries nozzle words along', () => {
 	const a = log(10, 100);
 	const b = log(10, 100.1); // interleaves with a
-	const picked = selectFixes(a, [9, 0]);
+	const picked = selectFixes(a, Uint32Array.from([9, 0]));
 	expect(Array.from(picked.sourceRow)).toEqual([11, 2]);
 	const joined = concatFixes([a, b]);
 	expect(joined.count).toBe(20);

@@ -99,39 +99,6 @@ export function unpackFixes(packed: Buffer): FixColumns {
 	return out as FixColumns;
 }
 
-/** The fixes at `indices`, as their own columns (for one field and day of a log). */
-export function selectFixes(f: FixColumns, indices: ArrayLike<number>): FixColumns {
-	const n = indices.length;
-	const pick = <T extends Float64Array | Float32Array | Uint32Array | Uint8Array>(src: T, make: (n: number) => T): T => {
-		const dst = make(n);
-		for (let i = 0; i < n; i++) dst[i] = src[indices[i]];
-		return dst;
-	};
-	let spray: SprayState;
-	if (f.spray.kind === 'nozzles') {
-		const w = f.spray.nozzleWords;
-		const bits = new Uint32Array(n * w);
-		for (let i = 0; i < n; i++) bits.set(f.spray.bits.subarray(indices[i] * w, indices[i] * w + w), i * w);
-		spray = { ...f.spray, bits };
-	} else if (f.spray.kind === 'activeWidth') {
-		spray = { kind: 'activeWidth', widthM: pick(f.spray.widthM, (k) => new Float32Array(k)) };
-	} else {
-		spray = { kind: 'fraction', fraction: pick(f.spray.fraction, (k) => new Float32Array(k)) };
-	}
-	return {
-		count: n,
-		timeS: pick(f.timeS, (k) => new Float64Array(k)),
-		lng: pick(f.lng, (k) => new Float64Array(k)),
-		lat: pick(f.lat, (k) => new Float64Array(k)),
-		sourceRow: pick(f.sourceRow, (k) => new Uint32Array(k)),
-		spray,
-		master: f.master && pick(f.master, (k) => new Uint8Array(k)),
-		rateLPerM2: f.rateLPerM2 && pick(f.rateLPerM2, (k) => new Float32Array(k)),
-		flowLPerS: f.flowLPerS && pick(f.flowLPerS, (k) => new Float32Array(k)),
-		speedMPerS: f.speedMPerS && pick(f.speedMPerS, (k) => new Float32Array(k))
-	};
-}
-
 /** Several logs' fixes for one application, joined and sorted by time. */
 export function concatFixes(parts: FixColumns[]): FixColumns {
 	if (parts.length === 1) return parts[0];
