@@ -1,12 +1,13 @@
 import { expect, test } from 'vitest';
 import proj4 from 'proj4';
-import { describeField, utmFor } from './field-geometry';
+import { describeField } from './field-geometry';
+import { utmZoneForLngLat } from './projection';
 
 test('UTM zones follow the 6-degree rule (zone 11N for -118.3, 47.1; 55S for 147.2, -35.4)', () => {
 	// Zone = floor((lng + 180) / 6) + 1; EPSG 326zz north, 327zz south (EPSG registry).
-	expect(utmFor(-118.3, 47.1).epsg).toBe(32611);
-	expect(utmFor(147.2, -35.4).epsg).toBe(32755);
-	expect(utmFor(180, 0).epsg).toBe(32660);
+	expect(utmZoneForLngLat(-118.3, 47.1).epsg).toBe(32611);
+	expect(utmZoneForLngLat(147.2, -35.4).epsg).toBe(32755);
+	expect(utmZoneForLngLat(180, 0).epsg).toBe(32660);
 });
 
 test('the grid origin is a multiple of the cell size and the grid covers the boundary', () => {
