@@ -4,5 +4,6 @@ import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireRole(event, 'fields');
-	return { fields: await fields.list(actor), canEdit: may(actor.role, 'fields.edit') };
+	const [rows, map] = await Promise.all([fields.list(actor), fields.featureCollection(actor)]);
+	return { fields: rows, map, canEdit: may(actor.role, 'fields.edit') };
 };
