@@ -96,12 +96,15 @@ async function recomputeApplication(tx: Tx, applicationId: string, field: FieldR
 		.where(eq(applicationFixes.applicationId, applicationId));
 	if (parts.length === 0) {
 		await tx.delete(applications).where(eq(applications.id, applicationId));
-		return;
+		return null;
 	}
 	const [machine] = await tx.select().from(machines).where(eq(machines.id, app.machineId!));
 	const [mix] = await tx.select().from(tankMixes).where(eq(tankMixes.id, app.tankMixId));
 	const fixes = concatFixes(parts.map((p) => unpackFixes(p.packed)));
 	const { totals, cells } = computeApplication(field, fixes, machine, mix.carrierRateLPerM2);
+	if (![totals.coveredM2, totals.sprayedM2, totals.volumeL].every(Number.isFinite)) {
+		throw new Error(`coverage of application ${applicationId} is not a number`);
+	}
 
 	await tx
 		.update(applications)
@@ -120,6 +123,7 @@ async function recomputeApplication(tx: Tx, applicationId: string, field: FieldR
 		.filter((c) => c.coveredM2 > 0 || c.sprayedM2 > 0 || c.volumeL > 0)
 		.map((c) => ({ applicationId, fieldId: field.id, ...c }));
 	for (let i = 0; i < rows.length; i += 4000) await tx.insert(cellResults).values(rows.slice(i, i + 4000));
+	return totals;
 }
 
 type Progress = (fraction: number) => Promise<void>;
@@ -221,12 +225,18 @@ export async function processUpload(db: Db, uploadId: string, progress: Progress
 			touched.set(app.id, g.field);
 		}
 		let done = 0;
+		let gaps = 0;
+		let masterOff = 0;
 		for (const [applicationId, field] of touched) {
-			await recomputeApplication(tx, applicationId, field);
+			const totals = await recomputeApplication(tx, applicationId, field);
+			gaps += totals?.gaps ?? 0;
+			masterOff += totals?.masterOff ?? 0;
 			await progress(0.5 + (0.45 * ++done) / touched.size);
 		}
 		const fullReport: CleaningReport & Record<string, unknown> = {
 			...report,
+			gaps,
+			masterOff,
 			outsideFields: split.outside,
 			notChosenDay,
 			applications: groups.size,
