@@ -241,7 +241,9 @@ function rasterise(
 		const i = input.starts ? input.starts[s] : s;
 		if (i + 1 >= n) continue;
 		const dt = time[i + 1] - time[i];
-		const dist = Math.hypot(x[i + 1] - x[i], y[i + 1] - y[i]);
+		const ex = x[i + 1] - x[i];
+		const ey = y[i + 1] - y[i];
+		const dist = Math.sqrt(ex * ex + ey * ey);
 		if (!(dt > 0) || dt > o.maxGapS || !(dist <= maxSpeedProj * dt)) {
 			gaps++;
 			continue;
@@ -322,7 +324,9 @@ function rasterise(
 	let volumeDrawnL = 0;
 	for (let s = 0; s < drawnCount; s++) {
 		const i = drawn[s];
-		const lenP = Math.hypot(x[i + 1] - x[i], y[i + 1] - y[i]);
+		const ex = x[i + 1] - x[i];
+		const ey = y[i + 1] - y[i];
+		const lenP = Math.sqrt(ex * ex + ey * ey);
 		const bandAreaP = sprayedWidthP(i) * lenP;
 		if (!(bandAreaP > 0)) continue;
 		const lp = liquidPerProjM2(i);
@@ -330,10 +334,17 @@ function rasterise(
 	}
 	function sprayedWidthP(i: number): number {
 		if (spray.kind === 'fraction') return fractionAt(i) * 2 * halfBoomP;
-		const nb = bandsAt(i);
-		let wP = 0;
-		for (let b = 0; b < nb; b++) wP += bandHi[b] - bandLo[b];
-		return wP;
+		if (spray.kind === 'activeWidth') return bandsAt(i) ? bandHi[0] - bandLo[0] : 0;
+		// Merging neighbours into runs does not change the total width: count the open nozzles.
+		const nw = spray.nozzleWords;
+		let open = 0;
+		for (let wi = 0; wi < nw; wi++) {
+			let w = spray.bits[i * nw + wi];
+			const last = nozzleCount - (wi << 5);
+			if (last < 32) w &= last <= 0 ? 0 : (1 << last) - 1;
+			open += popcount(w);
+		}
+		return open * spacingP;
 	}
 
 	// Strips of whole cell rows, sized so the two bit rasters fit the memory budget.
@@ -357,6 +368,9 @@ function rasterise(
 	let sprayedPx = 0;
 	let volumeL = 0;
 	const cellPxArea = cellPx * cellPx;
+	// Cell of pixel c is ((c + 0.5) * invCellPx) | 0: the half pixel keeps the truncation exact
+	// whatever the rounding of 1 / cellPx, and a multiply is cheaper than a divide per row.
+	const invCellPx = 1 / cellPx;
 
 	// Strip state read by fillRect.
 	let stripRow0 = 0;
@@ -397,23 +411,33 @@ function rasterise(
 		const ddy = Math.abs(dy) < 1e-12 ? 1e-12 : dy;
 		const idx = 1 / ddx;
 		const idy = 1 / ddy;
-		for (let r = r0; r <= r1; r++) {
-			const bv = r + stripRow0 + 0.5 - py;
-			const a1 = -bv * ddy * idx;
-			const a2 = a1 + lenPx * idx;
-			const b1 = (t0 + bv * ddx) * idy;
-			const b2 = (t1 + bv * ddx) * idy;
-			const lo = Math.max(Math.min(a1, a2), Math.min(b1, b2)) + px;
-			const hi = Math.min(Math.max(a1, a2), Math.max(b1, b2)) + px;
-			let c0 = Math.ceil(lo - 0.5);
-			let c1 = Math.floor(hi - 0.5);
+		// Per row the pixel-centre range is [max(a + aLo, b + bLo), min(a + aHi, b + bHi)], with a
+		// and b moving by fixed steps from row to row (the rectangle's two pairs of sides).
+		const aSpan = lenPx * idx;
+		const aLo = (aSpan < 0 ? aSpan : 0) + px - 0.5;
+		const aHi = (aSpan > 0 ? aSpan : 0) + px - 0.5;
+		const bSpan = (t1 - t0) * idy;
+		const bLo = (bSpan < 0 ? bSpan : 0) + px - 0.5;
+		const bHi = (bSpan > 0 ? bSpan : 0) + px - 0.5;
+		const bv0 = r0 + stripRow0 + 0.5 - py;
+		const aStep = -ddy * idx;
+		const bStep = ddx * idy;
+		let a = bv0 * aStep;
+		let b = (t0 + bv0 * ddx) * idy;
+		const patBase = level >= 0 ? level : -1;
+		for (let r = r0; r <= r1; r++, a += aStep, b += bStep) {
+			const lo = a + aLo > b + bLo ? a + aLo : b + bLo;
+			const hi = a + aHi < b + bHi ? a + aHi : b + bHi;
+			let c0 = Math.ceil(lo);
+			let c1 = Math.floor(hi);
 			if (c0 < 0) c0 = 0;
 			if (c1 >= W) c1 = W - 1;
 			if (c0 > c1) continue;
 			const base = r * wordsPerRow;
 			const w0 = c0 >> 5;
 			const w1 = c1 >> 5;
-			const pat = level >= 0 ? ditherWords[((r + stripRow0) & 15) * (DITHER_LEVELS + 1) + level] : -1;
+			const pat =
+				patBase >= 0 ? ditherWords[((r + stripRow0) & 15) * (DITHER_LEVELS + 1) + patBase] : -1;
 			const m0 = -1 << (c0 & 31);
 			const m1 = -1 >>> (31 - (c1 & 31));
 			if (w0 === w1) target[base + w0] |= m0 & m1 & pat;
@@ -422,7 +446,14 @@ function rasterise(
 				for (let w = w0 + 1; w < w1; w++) target[base + w] |= pat;
 				target[base + w1] |= m1 & pat;
 			}
-			if (volPerPx > 0) addVolume(r, c0, c1, volPerPx);
+			if (volPerPx > 0) {
+				const cr = (((r + 0.5) * invCellPx) | 0) * win.cols;
+				const cc0 = ((c0 + 0.5) * invCellPx) | 0;
+				// Most bands lie inside one cell that lies wholly inside the region.
+				if (cc0 === (((c1 + 0.5) * invCellPx) | 0) && cellInside[cr + cc0]) {
+					cellVolume[cr + cc0] += (c1 - c0 + 1) * volPerPx;
+				} else addVolume(r, c0, c1, volPerPx);
+			}
 		}
 	};
 
@@ -482,7 +513,7 @@ function rasterise(
 			const y0 = y[i];
 			const ex = x[i + 1] - x0;
 			const ey = y[i + 1] - y0;
-			const lenP = Math.hypot(ex, ey);
+			const lenP = Math.sqrt(ex * ex + ey * ey);
 			if (lenP === 0) continue;
 			const dx = ex / lenP;
 			const dy = ey / lenP;
