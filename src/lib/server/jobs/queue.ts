@@ -24,7 +24,8 @@ export async function startQueue(connectionString: string, role: 'app' | 'worker
 		name: processUploadQueue,
 		retryLimit: 3,
 		retryDelay: 5,
-		expireInSeconds: 15 * 60
+		// A job whose worker died is retried after this; a million-fix log takes well under a minute.
+		expireInSeconds: 5 * 60
 	});
 	return boss;
 }
