@@ -30,6 +30,10 @@ export type FixColumns = {
 	speedMPerS?: Float32Array;
 	/** 1-based row (or feature) number in the source file, for messages. */
 	sourceRow: Uint32Array;
+	/** Optional: 1 where the interval from this fix to the next belongs to this set of fixes, 0
+	 * where the fix is only the end of the previous interval (a field's fixes carry the fix after
+	 * each, so the interval that crosses the field's edge is drawn). Absent: every fix starts one. */
+	isStart?: Uint8Array;
 };
 
 /** The sprayer's geometry, from the catalogue. */

@@ -44,3 +44,12 @@ test('selecting and joining logs orders fixes by time and carries nozzle words a
 	expect(at).toBe(1);
 	expect(Array.from(joined.spray.bits.subarray(at * 5, at * 5 + 5))).toEqual(Array.from(b.spray.bits.subarray(0, 5)));
 });
+
+test('interval starts survive packing and joining; a part without them starts at every fix', () => {
+	const a = { ...log(4, 100), isStart: Uint8Array.from([1, 0, 1, 0]) };
+	expect(Array.from(unpackFixes(packFixes(a)).isStart!)).toEqual([1, 0, 1, 0]);
+	const b = log(2, 100.1);
+	const joined = concatFixes([a, b]);
+	// Time order: a0 (100), b0 (100.1), a1 (100.2), b1 (100.3), a2, a3.
+	expect(Array.from(joined.isStart!)).toEqual([1, 1, 0, 1, 1, 0]);
+});

@@ -27,6 +27,7 @@ function columnsOf(f: FixColumns): [string, Column][] {
 	if (f.rateLPerM2) out.push(['rateLPerM2', f.rateLPerM2]);
 	if (f.flowLPerS) out.push(['flowLPerS', f.flowLPerS]);
 	if (f.speedMPerS) out.push(['speedMPerS', f.speedMPerS]);
+	if (f.isStart) out.push(['isStart', f.isStart]);
 	return out;
 }
 
@@ -80,6 +81,7 @@ export function unpackFixes(packed: Buffer): FixColumns {
 			case 'rateLPerM2': out.rateLPerM2 = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
 			case 'flowLPerS': out.flowLPerS = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
 			case 'speedMPerS': out.speedMPerS = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
+			case 'isStart': out.isStart = take((b, o, l) => new Uint8Array(b, o, l), n, 1); break;
 			case 'spray': {
 				const s = header.spray;
 				if (s.kind === 'nozzles') {
@@ -152,6 +154,10 @@ export function concatFixes(parts: FixColumns[]): FixColumns {
 		master: pick((p) => p.master, (n) => new Uint8Array(n)) as Uint8Array | undefined,
 		rateLPerM2: pick((p) => p.rateLPerM2, (n) => new Float32Array(n)) as Float32Array | undefined,
 		flowLPerS: pick((p) => p.flowLPerS, (n) => new Float32Array(n)) as Float32Array | undefined,
-		speedMPerS: pick((p) => p.speedMPerS, (n) => new Float32Array(n)) as Float32Array | undefined
+		speedMPerS: pick((p) => p.speedMPerS, (n) => new Float32Array(n)) as Float32Array | undefined,
+		// A part without the column starts an interval at every fix.
+		isStart: parts.some((p) => p.isStart)
+			? (pick((p) => p.isStart ?? new Uint8Array(p.count).fill(1), (n) => new Uint8Array(n)) as Uint8Array)
+			: undefined
 	};
 }

@@ -78,8 +78,14 @@ export function computeApplication(
 	const zone = utmZoneFor(boundary);
 	const scaleFactor = zone.proj === grid.proj ? fieldScaleFactor(boundary, zone) : 0.9996;
 	const { x, y } = projectLngLat(grid.proj, fixes.lng, fixes.lat);
+	let starts: Uint32Array | undefined;
+	if (fixes.isStart) {
+		const flags = fixes.isStart;
+		starts = new Uint32Array(flags.reduce((n, v) => n + v, 0));
+		for (let i = 0, j = 0; i < fixes.count; i++) if (flags[i]) starts[j++] = i;
+	}
 	return computeCoverage(
-		{ x, y, fixes, boom: machine, scaleFactor, grid },
+		{ x, y, fixes, starts, boom: machine, scaleFactor, grid },
 		projectRings(grid.proj, boundary),
 		{ defaultRateLPerM2: carrierRateLPerM2 }
 	);
@@ -167,21 +173,29 @@ export async function processUpload(db: Db, uploadId: string, progress: Progress
 	// 3. Split by field, then by day. Each group also keeps the fix after each of its own, so
 	// the interval that carries the boom over the field's edge is drawn (and clipped there).
 	const split = splitByField(cleaned.lng, cleaned.lat, cleaned.count, farmFields.map((f) => f.boundary as Polygon | MultiPolygon));
-	const groups = new Map<string, { field: FieldRow; day: string; indices: number[] }>();
+	const groups = new Map<string, { field: FieldRow; day: string; indices: number[]; isStart: number[] }>();
 	let notChosenDay = 0;
 	split.fixesByField.forEach((indices, fieldIndex) => {
-		let lastAdded = -1;
+		let g: { field: FieldRow; day: string; indices: number[]; isStart: number[] } | undefined;
 		for (const i of indices) {
 			if (wanted && !wanted.has(days[i])) {
 				notChosenDay++;
 				continue;
 			}
 			const key = `${fieldIndex}|${days[i]}`;
-			let g = groups.get(key);
-			if (!g) groups.set(key, (g = { field: farmFields[fieldIndex], day: days[i], indices: [] }));
-			if (i > lastAdded) g.indices.push(i);
-			if (i + 1 < cleaned.count && days[i + 1] === days[i]) g.indices.push(i + 1);
-			lastAdded = i + 1;
+			g = groups.get(key);
+			if (!g) groups.set(key, (g = { field: farmFields[fieldIndex], day: days[i], indices: [], isStart: [] }));
+			// Field fixes come in ascending order: i may already be there as the previous one's end.
+			const last = g.indices.length - 1;
+			if (last >= 0 && g.indices[last] === i) g.isStart[last] = 1;
+			else {
+				g.indices.push(i);
+				g.isStart.push(1);
+			}
+			if (i + 1 < cleaned.count) {
+				g.indices.push(i + 1);
+				g.isStart.push(0);
+			}
 		}
 	});
 	await progress(0.5);
@@ -200,6 +214,7 @@ export async function processUpload(db: Db, uploadId: string, progress: Progress
 		}
 		for (const g of groups.values()) {
 			const part = selectFixes(cleaned, Uint32Array.from(g.indices));
+			part.isStart = Uint8Array.from(g.isStart);
 			const [app] = await tx
 				.insert(applications)
 				.values({
