@@ -37,12 +37,20 @@ if (!read.fixes) throw new Error(JSON.stringify(read.errors.slice(0, 3)));
 read.fixes = null;
 
 const t0 = performance.now();
-await processUpload(db, upload.id, async () => {});
+const marks: [number, number][] = [];
+await processUpload(db, upload.id, async (fraction) => {
+	marks.push([fraction, performance.now() - t0]);
+});
 const processMs = performance.now() - t0;
+// Progress marks: 0.35 after reading, 0.5 after cleaning and splitting, then per application.
+const at = (f: number) => marks.find(([x]) => x >= f)?.[1] ?? NaN;
+console.log(`bench: read ${(at(0.35) / 1000).toFixed(1)} s, clean+split ${((at(0.5) - at(0.35)) / 1000).toFixed(1)} s, pack+recompute+write ${((processMs - at(0.5)) / 1000).toFixed(1)} s`);
 const [totals] = await db.execute<{ covered: number; sprayed: number; cells: number }>(
 	sql`select sum(covered_m_2)::float8 as covered, sum(sprayed_m_2)::float8 as sprayed,
 	(select count(*) from cell_results c join applications a on a.id = c.application_id where a.farm_id = ${farm.id})::int as cells
 	from applications where farm_id = ${farm.id}`
 );
 await client.end();
-process.send!({ readMs, processMs, maxRssMB: process.resourceUsage().maxRSS / 1024, coveredM2: totals.covered, sprayedM2: totals.sprayed, cells: totals.cells });
+const result = { readMs, processMs, maxRssMB: process.resourceUsage().maxRSS / 1024, coveredM2: totals.covered, sprayedM2: totals.sprayed, cells: totals.cells };
+if (process.send) process.send(result);
+else console.log(result);
