@@ -154,8 +154,9 @@ describe('the actions', () => {
 		);
 		if (!isActionFailure(result)) throw new Error('expected a failure');
 		expect(result.status).toBe(400);
-		expect(result.data.values).toMatchObject({ boomWidth: '30', nozzleCount: '144' });
-		expect(Object.keys(result.data.problems ?? {}).sort()).toEqual(['boomWidth', 'name']);
+		const data = result.data as unknown as { values: Record<string, string>; problems: Record<string, string> };
+		expect(data.values).toMatchObject({ boomWidth: '30', nozzleCount: '144' });
+		expect(Object.keys(data.problems).sort()).toEqual(['boomWidth', 'name']);
 		expect(await db.select().from(machines).where(eq(machines.farmId, farm.id))).toEqual([]);
 	});
 });

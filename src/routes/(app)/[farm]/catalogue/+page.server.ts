@@ -30,7 +30,7 @@ type Section = 'machines' | 'products' | 'mixes';
 type Saved = { section: Section; form: string; saved: string; warnings: string[] };
 
 function invalid(section: Section, form: string, parsed: Extract<Parsed<unknown>, { ok: false }>) {
-	return fail(400, { section, form, values: parsed.values, problems: parsed.problems, message: 'Check the fields marked below.' });
+	return fail(400, { section, form, values: parsed.values, problems: parsed.problems, message: 'Check the fields marked in red.' });
 }
 
 function refused(section: Section, form: string, values: Values, outcome: Extract<catalogue.Outcome<unknown>, { ok: false }>) {
