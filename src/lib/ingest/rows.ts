@@ -32,6 +32,7 @@ export type ReadLogOptions = {
 export type Cell = string | number | boolean | null | undefined;
 
 const MISSING = Symbol('missing');
+const SECONDS_RE = /^[0-5]\d(?:\.\d{1,9})?$/;
 type Num = number | typeof MISSING;
 
 class Growing<T extends Float64Array | Float32Array | Uint32Array | Uint8Array> {
@@ -338,7 +339,25 @@ export class RowPlan {
 		return true;
 	}
 
+	// Consecutive fixes share their minute: 'YYYY-MM-DDTHH:MM' is parsed once, then only the
+	// seconds of 'ss(.fff)Z' are read. Saves most of the reader's time on a 5 Hz log.
+	private minutePrefix = '';
+	private minuteStartS = 0;
+
 	private parseIso(s: string): number {
+		if (this.minutePrefix && s.length >= 20 && s.startsWith(this.minutePrefix) && s.charCodeAt(s.length - 1) === 90) {
+			const seconds = s.slice(17, -1);
+			if (SECONDS_RE.test(seconds)) return this.minuteStartS + Number(seconds);
+		}
+		const t = this.parseIsoFully(s);
+		if (!Number.isNaN(t) && s.length >= 20 && s.charCodeAt(16) === 58 && s.charCodeAt(s.length - 1) === 90 && SECONDS_RE.test(s.slice(17, -1))) {
+			this.minutePrefix = s.slice(0, 16);
+			this.minuteStartS = t - Number(s.slice(17, -1));
+		}
+		return t;
+	}
+
+	private parseIsoFully(s: string): number {
 		const m = ISO_RE.exec(s);
 		if (!m) return NaN;
 		const [, Y, Mo, D, h = '0', mi = '0', sec = '0', frac, zone] = m;
