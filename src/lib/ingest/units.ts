@@ -1,14 +1,9 @@
-// Unit conversions to SI for mapped log columns. Factors are exact or as printed in NIST SP 811
-// (2008), Appendix B: 1 ft = 0.3048 m, 1 mph = 0.44704 m/s, 1 US gal = 3.785411784 L,
-// 1 acre = 4046.8564224 m2, 1 psi = 6.894757E+03 Pa, 1 bar = 1E+05 Pa.
+// The units a log's columns may be mapped in, and their factors to SI, taken from the one table
+// of NIST SP 811 factors in $lib/compute/units.
+import { factors, L_PER_GAL, M2_PER_ACRE } from '../compute/units';
 
-export const FOOT_M = 0.3048;
-export const MPH_M_PER_S = 0.44704;
-export const US_GALLON_L = 3.785411784;
-export const ACRE_M2 = 4046.8564224;
-export const PSI_PA = 6894.757;
-export const BAR_PA = 1e5;
-export const HECTARE_M2 = 1e4;
+export const US_GALLON_L = L_PER_GAL;
+export const ACRE_M2 = M2_PER_ACRE;
 
 export type LengthUnit = 'm' | 'ft' | 'cm' | 'in';
 export type SpeedUnit = 'km/h' | 'mph' | 'm/s';
@@ -16,13 +11,13 @@ export type RateUnit = 'L/ha' | 'gal/ac';
 export type FlowUnit = 'L/min' | 'gal/min';
 export type PressureUnit = 'bar' | 'psi' | 'kPa';
 
-export const lengthToM: Record<LengthUnit, number> = { m: 1, ft: FOOT_M, cm: 0.01, in: FOOT_M / 12 };
-export const speedToMPerS: Record<SpeedUnit, number> = { 'km/h': 1000 / 3600, mph: MPH_M_PER_S, 'm/s': 1 };
+const pick = <U extends string>(table: Record<string, number>, units: U[]) =>
+	Object.fromEntries(units.map((u) => [u, table[u]])) as Record<U, number>;
+
+export const lengthToM = pick(factors.length, ['m', 'ft', 'cm', 'in'] as LengthUnit[]);
+export const speedToMPerS = pick(factors.speed, ['km/h', 'mph', 'm/s'] as SpeedUnit[]);
 /** Volume per area to L/m2. */
-export const rateToLPerM2: Record<RateUnit, number> = {
-	'L/ha': 1 / HECTARE_M2,
-	'gal/ac': US_GALLON_L / ACRE_M2
-};
+export const rateToLPerM2 = pick(factors.volumePerArea, ['L/ha', 'gal/ac'] as RateUnit[]);
 /** Volume per time to L/s. */
-export const flowToLPerS: Record<FlowUnit, number> = { 'L/min': 1 / 60, 'gal/min': US_GALLON_L / 60 };
-export const pressureToPa: Record<PressureUnit, number> = { bar: BAR_PA, psi: PSI_PA, kPa: 1000 };
+export const flowToLPerS = pick(factors.flow, ['L/min', 'gal/min'] as FlowUnit[]);
+export const pressureToPa = pick(factors.pressure, ['bar', 'psi', 'kPa'] as PressureUnit[]);

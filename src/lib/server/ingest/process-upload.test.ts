@@ -150,6 +150,8 @@ test('a bad file fails with the row and column named, and leaves no figures behi
 	expect(failed.error).toContain('broken.csv, row 11');
 	expect(failed.error).toContain("column 'lon'");
 	expect(await db.select().from(applications).where(eq(applications.fieldId, ctx.field.id))).toHaveLength(0);
+	// The raw upload is kept, to be processed again once the mapping or file is fixed.
+	expect(await rawStore.exists(u.sha256)).toBe(true);
 });
 
 test('fixes outside every field are counted, not silently dropped', async () => {
