@@ -1,10 +1,10 @@
-import { isActionFailure, isHttpError } from '@sveltejs/kit';
+import { isActionFailure } from '@sveltejs/kit';
 import { and, eq } from 'drizzle-orm';
 import { describe, expect, test } from 'vitest';
 import { db } from '$lib/server/db';
 import { applications, auditLog, fields, machines, products, type Role } from '$lib/server/db/schema';
 import { requireMember } from '$lib/server/auth/guard';
-import { eventFor, join, makeFarm, makeUser } from '$lib/server/testing/fixtures';
+import { eventFor, join, makeFarm, makeUser, statusOf } from '$lib/server/testing/fixtures';
 import * as catalogue from './catalogue';
 import { actions, load } from '../../routes/(app)/[farm]/catalogue/+page.server';
 
@@ -31,15 +31,6 @@ async function farmWith(...roles: Role[]) {
 	return { farm, people };
 }
 
-async function statusOf(promise: Promise<unknown>) {
-	try {
-		await promise;
-		return 200;
-	} catch (e) {
-		if (isHttpError(e)) return e.status;
-		throw e;
-	}
-}
 
 function post(user: Awaited<ReturnType<typeof makeUser>>, slug: string, values: Record<string, string | string[]>) {
 	const body = new FormData();

@@ -32,7 +32,7 @@ export type SeasonFigures = {
 	coveredM2: number;
 	sprayedM2: number;
 	volumeL: number;
-	products: Map<string, ProductFigures>;
+	products: ProductFigures[];
 };
 
 function scope(actor: Actor, fieldId?: string) {
@@ -100,7 +100,7 @@ export async function listApplications(actor: Actor, { fieldId, season }: { fiel
 
 /** Applications summed per field and season (newest season first). */
 export function bySeason(apps: (ApplicationFigures & { productIds: string[] })[]): SeasonFigures[] {
-	const out = new Map<string, SeasonFigures>();
+	const out = new Map<string, Omit<SeasonFigures, 'products'> & { products: Map<string, ProductFigures> }>();
 	for (const a of apps) {
 		const key = `${a.fieldId}|${a.season}`;
 		let s = out.get(key);
@@ -128,5 +128,7 @@ export function bySeason(apps: (ApplicationFigures & { productIds: string[] })[]
 			}
 		});
 	}
-	return [...out.values()].sort((a, b) => b.season - a.season || a.fieldName.localeCompare(b.fieldName));
+	return [...out.values()]
+		.map((s) => ({ ...s, products: [...s.products.values()] }))
+		.sort((a, b) => b.season - a.season || a.fieldName.localeCompare(b.fieldName));
 }

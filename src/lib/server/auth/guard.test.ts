@@ -1,18 +1,7 @@
-import { isHttpError, isRedirect } from '@sveltejs/kit';
 import { describe, expect, test } from 'vitest';
-import { eventFor, join, makeFarm, makeUser } from '$lib/server/testing/fixtures';
+import { eventFor, join, makeFarm, makeUser, statusOf } from '$lib/server/testing/fixtures';
 import { may, mayOpen, requireMember, requireRole, requireUser } from './guard';
 
-async function statusOf(promise: Promise<unknown>) {
-	try {
-		await promise;
-		return 200;
-	} catch (e) {
-		if (isHttpError(e)) return e.status;
-		if (isRedirect(e)) return e.status;
-		throw e;
-	}
-}
 
 describe('what each role may open (DESIGN.md roles table)', () => {
 	test('only managers open the team and savings', () => {

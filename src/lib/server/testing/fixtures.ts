@@ -1,5 +1,5 @@
 // Helpers for integration tests: real rows in the test database, and a minimal request event.
-import type { RequestEvent } from '@sveltejs/kit';
+import { isHttpError, isRedirect, type RequestEvent } from '@sveltejs/kit';
 import { db } from '$lib/server/db';
 import { farms, fields, landlordGrants, memberships, users, type Role } from '$lib/server/db/schema';
 import { hashPassword } from '$lib/server/auth/password';
@@ -49,4 +49,15 @@ export function eventFor(user: SessionUser | null, params: Record<string, string
 		params,
 		url: new URL(`http://127.0.0.1${path}`)
 	} as unknown as RequestEvent;
+}
+
+/** The HTTP status a guarded call ends in: 200 when it returns, else its error's or redirect's. */
+export async function statusOf(promise: Promise<unknown>): Promise<number> {
+	try {
+		await promise;
+		return 200;
+	} catch (e) {
+		if (isHttpError(e) || isRedirect(e)) return e.status;
+		throw e;
+	}
 }

@@ -14,7 +14,7 @@ export const load: PageServerLoad = async (event) => {
 	const seasons = [...new Set(all.map((a) => a.season))].sort((a, b) => b - a);
 	const asked = Number(event.url.searchParams.get('season'));
 	const season = seasons.includes(asked) ? asked : (seasons[0] ?? null);
-	const rows = figures.bySeason(all.filter((a) => a.season === season)).map((r) => ({ ...r, products: [...r.products.values()] }));
+	const rows = figures.bySeason(all.filter((a) => a.season === season));
 	return {
 		fields: await fields.list(actor),
 		seasons,
