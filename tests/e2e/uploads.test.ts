@@ -31,6 +31,26 @@ test('an operator on a phone uploads a log, maps it and sees it processed', asyn
 	const expectedHa = (passes * lengthM * 36.576) / 1e4;
 	expect(Math.abs(coveredHa - expectedHa) / expectedHa).toBeLessThan(0.01);
 	expect(Number(cells[4])).toBeCloseTo(50, 0);
+
+	// The field page and the farm overview show the same application.
+	await row.getByRole('link', { name: 'North Flat' }).click();
+	await expect(page.getByTestId('field-applications').getByRole('row', { name: /2026-05-04/ })).toContainText('Fallow knockdown');
+	await page.screenshot({ path: 'tests/screenshots/operator-field-figures-phone.png', fullPage: true });
+	await page.goto('/tallowgrass');
+	await expect(page.getByTestId('season-totals')).toContainText('Sprayed share');
+	await expect(page.getByTestId('season-figures').getByRole('row', { name: /North Flat/ })).toContainText('Glyphosate 540 (demo)');
+	// Operators see no prices: the saved amount is in litres, with no money.
+	await expect(page.getByTestId('season-figures')).not.toContainText('$');
+	await page.setViewportSize({ width: 1280, height: 800 });
+	await page.screenshot({ path: 'tests/screenshots/operator-overview-figures-desktop.png', fullPage: true });
+});
+
+test('a manager sees the chemical saved in money on the overview', async ({ page }) => {
+	await signIn(page, people.manager);
+	await page.goto('/tallowgrass');
+	await expect(page.getByTestId('season-totals')).toContainText('Chemical saved (est.)');
+	await expect(page.getByTestId('season-figures')).toContainText('$');
+	await page.screenshot({ path: 'tests/screenshots/manager-overview-figures-desktop.png', fullPage: true });
 });
 
 test('the same file uploaded twice is recognised and not counted twice', async ({ page }) => {

@@ -1,7 +1,14 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { may, requireRole } from '$lib/server/auth/guard';
 import * as fields from '$lib/server/fields';
+import type { Actor } from '$lib/server/auth/guard';
+import * as figures from '$lib/server/figures';
 import type { Actions, PageServerLoad } from './$types';
+
+async function fieldFigures(actor: Actor, fieldId: string) {
+	const applications = await figures.listApplications(actor, { fieldId });
+	return { seasons: figures.bySeason(applications), applications: applications.map(({ productIds: _p, ...a }) => a) };
+}
 
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireRole(event, 'fields');
@@ -11,7 +18,8 @@ export const load: PageServerLoad = async (event) => {
 	return {
 		field,
 		canEdit,
-		applicationCount: canEdit ? await fields.applicationCount(actor, field.id) : 0
+		applicationCount: canEdit ? await fields.applicationCount(actor, field.id) : 0,
+		...(await fieldFigures(actor, field.id))
 	};
 };
 
