@@ -180,7 +180,7 @@ test('renaming a field with a hole and two parts keeps its boundary and area', a
 	await page.getByRole('link', { name: 'All fields' }).click();
 	await page.getByRole('link', { name: 'Invented Pond Paddock' }).click();
 	await expect(page.getByText('One part, 1 hole')).toBeVisible();
-	await expect(page.getByTestId('field-figures')).toContainText('Season figures appear here once logs are processed.');
+	await expect(page.getByTestId('field-figures')).toContainText('No processed logs for this field yet.');
 	await expect(page.getByText('UTM zone 11N (EPSG:32611)')).toBeVisible();
 	for (const [name, size] of Object.entries(viewports)) {
 		await page.setViewportSize(size);

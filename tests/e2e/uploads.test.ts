@@ -18,6 +18,7 @@ test('an operator on a phone uploads a log, maps it and sees it processed', asyn
 	await expect(page.getByRole('columnheader', { name: 'nozzles 1' })).toBeVisible();
 	await page.screenshot({ path: 'tests/screenshots/operator-upload-mapping-phone.png', fullPage: true });
 
+	await page.getByLabel('Machine').selectOption({ label: 'Spot sprayer 36.6 m (144 nozzles)' });
 	await page.getByLabel('Tank mix').selectOption({ label: 'Fallow knockdown' });
 	await page.getByRole('button', { name: 'Process this log' }).click();
 	await expect(page.getByTestId('upload-status')).toContainText('Processed', { timeout: 60_000 });
@@ -82,6 +83,7 @@ test('a log with a bad row fails whole, naming the row and column, and counts no
 	lines[6] = lines[6].replace(/,47\.\d+,/, ',forty-seven,');
 	await page.getByTestId('upload-input').setInputFiles({ name: 'bad-row.csv', mimeType: 'text/csv', buffer: Buffer.from(lines.join('\n')) });
 	await page.getByRole('link', { name: 'Map its columns' }).click();
+	await page.getByLabel('Machine').selectOption({ label: 'Spot sprayer 36.6 m (144 nozzles)' });
 	await page.getByLabel('Tank mix').selectOption({ label: 'Fallow knockdown' });
 	await page.getByRole('button', { name: 'Process this log' }).click();
 	await expect(page.getByTestId('upload-error')).toContainText('bad-row.csv, row 7', { timeout: 60_000 });
