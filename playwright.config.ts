@@ -28,7 +28,7 @@ export default defineConfig({
 		command: 'bash scripts/e2e-server.sh',
 		url: `http://127.0.0.1:${port}/api/health`,
 		reuseExistingServer: !process.env.CI,
-		timeout: 120_000,
+		timeout: 600_000, // the first start loads the demo farm through the real pipeline
 		stdout: 'pipe'
 	}
 });

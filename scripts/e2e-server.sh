@@ -6,7 +6,7 @@ db=${E2E_DB:-patchbook_e2e}
 bash scripts/db.sh recreate "$db"
 export DATABASE_URL=$(bash scripts/db.sh url "$db")
 node scripts/migrate.js
-npx tsx scripts/seed.ts
+npx tsx scripts/load-demo.ts
 npx tsx tests/e2e/seed-e2e.ts
 export HOST=127.0.0.1 PORT=${E2E_PORT:-4173} BODY_SIZE_LIMIT=Infinity
 export ORIGIN=http://$HOST:$PORT

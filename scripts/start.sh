@@ -7,7 +7,7 @@ bash scripts/ensure-deps.sh
 bash scripts/db.sh start
 export DATABASE_URL=${DATABASE_URL:-$(bash scripts/db.sh url patchbook)}
 node scripts/migrate.js
-npx tsx scripts/seed.ts
+npx tsx scripts/load-demo.ts
 
 # Build when there is no build or any source is newer than it.
 if [ ! -f build/index.js ] || [ -n "$(find src static svelte.config.js vite.config.ts package-lock.json -newer build/index.js -print -quit)" ]; then
@@ -23,9 +23,11 @@ cat <<MSG
 Patchbook is running at $ORIGIN
 Demo sign-ins (password for all: patchbook-demo):
   manager     mara@tallowgrass.example
-  agronomist  dev@fieldwise-agronomy.example   (also in a second farm)
-  operator    sam@tallowgrass.example
-  landlord    helen.marsh@landowner.example
+  agronomist  dev@fieldwise-agronomy.example   (also agronomist of Brennan Creek Farm)
+  operators   sam@tallowgrass.example, noor@tallowgrass.example
+  landlords   helen.marsh@landowner.example (North Flat, Schoolhouse)
+              arvid.lund@landowner.example (Long Hill)
+  manager of the second farm: tom@brennancreek.example
 Stop with Ctrl-C; the database keeps running until 'npm run db:stop'.
 
 MSG

@@ -120,7 +120,7 @@ test('an agronomist in two farms switches farm from the header', async ({ page }
 	await page.getByRole('link', { name: /Brennan Creek Farm/ }).click();
 	await expect(page).toHaveURL('/brennan-creek');
 	await expect(page.getByRole('heading', { name: 'Brennan Creek Farm' })).toBeVisible();
-	await expect(page.getByTestId('field-count')).toHaveText('1');
+	await expect(page.getByTestId('field-count')).toHaveText('2');
 	// The farm used last opens next time.
 	await page.goto('/');
 	await expect(page).toHaveURL('/brennan-creek');

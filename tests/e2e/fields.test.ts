@@ -267,5 +267,5 @@ test('a landlord may not open fields; another farm’s field id is not found', a
 	await signIn(page, people.otherFarmManager);
 	expect((await page.goto(`/brennan-creek/fields/${id}`))?.status()).toBe(404);
 	const api = await page.request.get('/api/farms/brennan-creek/fields/geojson');
-	expect((await api.json()).features.map((f: { properties: { name: string } }) => f.properties.name)).toEqual(['Creek Bottom']);
+	expect((await api.json()).features.map((f: { properties: { name: string } }) => f.properties.name)).toEqual(['Creek Bottom', 'Upper Bench']);
 });

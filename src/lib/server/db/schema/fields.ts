@@ -44,6 +44,8 @@ export const landlordGrants = pgTable(
 		fieldId: uuid()
 			.notNull()
 			.references(() => fields.id, { onDelete: 'cascade' }),
+		/** The landlord's share of herbicide cost under a crop-share lease, 0..100; null = cash rent. */
+		cropSharePercent: doublePrecision(),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 	},
 	(t) => [unique().on(t.userId, t.fieldId), index().on(t.farmId), index().on(t.fieldId)]

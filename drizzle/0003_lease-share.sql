@@ -1,0 +1,1 @@
+ALTER TABLE "landlord_grants" ADD COLUMN "crop_share_percent" double precision;
