@@ -24,7 +24,11 @@ export function startWorker(env: Record<string, string | undefined>): void {
 		console.error('[app] no worker script found; uploads will wait in the queue');
 		return;
 	}
-	child = fork(cmd.script, [], { execArgv: cmd.execArgv, env: { ...process.env, ...env }, stdio: 'inherit' });
+	child = fork(cmd.script, [], {
+		execArgv: cmd.execArgv,
+		env: { ...process.env, ...env, PATCHBOOK_WORKER_SOLE: '1' },
+		stdio: 'inherit'
+	});
 	child.on('exit', (code, signal) => {
 		child = null;
 		if (stopping) return;
