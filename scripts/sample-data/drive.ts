@@ -106,7 +106,10 @@ export function drive(path: Path, opts: DriveOptions): FixTable {
 	let extraMs = 0;
 	let gapLeft = 0;
 	let lunchTaken = opts.lunchAfterS === undefined;
-	// GNSS error: a slowly wandering bias plus white noise, about 2 cm all told.
+	// GNSS error: about 2 cm, nearly all of it a slowly wandering bias (receiver errors are strongly
+	// correlated from one 0.2 s fix to the next), plus 1 mm of white noise. Uncorrelated
+	// centimetres would swing the heading by a degree from fix to fix, which a 36 m boom turns
+	// into wedge-shaped holes in the covered area that a real machine does not leave.
 	let biasE = 0;
 	let biasN = 0;
 	const maxTicks = opts.maxSeconds ? Math.round(opts.maxSeconds / DT_S) : Infinity;
@@ -122,16 +125,16 @@ export function drive(path: Path, opts: DriveOptions): FixTable {
 			extraMs += Math.round(opts.lunchS ?? 2400) * 1000;
 			lunchTaken = true;
 		}
-		biasE = 0.995 * biasE + 0.0015 * gaussian(rand);
-		biasN = 0.995 * biasN + 0.0015 * gaussian(rand);
+		biasE = 0.998 * biasE + 0.0012 * gaussian(rand);
+		biasN = 0.998 * biasN + 0.0012 * gaussian(rand);
 		if (gapLeft === 0 && opts.gapChance && rand() < opts.gapChance) gapLeft = 10 + Math.floor(rand() * 25);
 		if (gapLeft > 0) gapLeft--;
 		else {
 			out.ensure();
 			const i = out.count++;
 			out.timeMs[i] = opts.startMs + extraMs + tick * FIX_INTERVAL_MS;
-			out.e[i] = x + biasE + 0.008 * gaussian(rand);
-			out.n[i] = y + biasN + 0.008 * gaussian(rand);
+			out.e[i] = x + biasE + 0.001 * gaussian(rand);
+			out.n[i] = y + biasN + 0.001 * gaussian(rand);
 			out.speed[i] = Math.max(0, v * 3.6 + 0.05 * gaussian(rand));
 			out.heading[i] = ((Math.atan2(dx, dy) * 180) / Math.PI + 360) % 360;
 			out.master[i] = on ? 1 : 0;

@@ -40,9 +40,9 @@ function tallowgrass(): DemoField[] {
 		parts: parts.map(([outer, ...holes]) => [ccw(outer), ...holes.map(cw)])
 	});
 	// Coyote Draw: its east edge follows the draw, sampled every 40 m.
-	const drawEdge = sample(1612, 3212, 40, (y) => [drawX(y), y]);
+	const drawEdge = sample(1612, 3212, 40, (y): Xy => [drawX(y), y]);
 	const coyote: Xy[] = [[1662, 1612], ...drawEdge, [1662, 3212]];
-	const littleEdge = sample(LITTLE_DRAW_TOP, 1612, 40, (y) => [drawX(y) + DRAW_WIDTH_M, y]);
+	const littleEdge = sample(LITTLE_DRAW_TOP, 1612, 40, (y): Xy => [drawX(y) + DRAW_WIDTH_M, y]);
 	const little: Xy[] = [...littleEdge, [3262, 1612], [3262, LITTLE_DRAW_TOP]];
 	return [
 		f('North Flat', 180, 0, [[[[0, 1612], [1125, 1612], [1125, 3212], [60, 3212], [0, 3150]]]]),
@@ -67,8 +67,8 @@ const BRENNAN_N = -5400;
 function brennanCreek(): DemoField[] {
 	const off = (p: Xy): Xy => [p[0] + BRENNAN_E, p[1] + BRENNAN_N];
 	// Creek Bottom: its west edge follows the creek.
-	const creek = sample(750, 0, 30, (y) => [40 * Math.sin((2 * Math.PI * y) / 900) + 20, y]);
-	const bottom: Xy[] = [...creek, [620, 0], [620, 750]].map(off);
+	const creek = sample(750, 0, 30, (y): Xy => [40 * Math.sin((2 * Math.PI * y) / 900) + 20, y]);
+	const bottom: Xy[] = [...creek, [620, 0] as Xy, [620, 750] as Xy].map(off);
 	const bench: Xy[] = rect(700, -120, 1400, 880).map(off);
 	return [
 		{ farm: 'brennan-creek', name: 'Creek Bottom', targetHa: 45, passAngleDeg: 0, parts: [[ccw(bottom)]] },

@@ -103,7 +103,10 @@ function routePart(path: Path, part: Xy[][], angleDeg: number, opts: FieldRouteO
 	const lo = Math.min(...across);
 	const hi = Math.max(...across);
 	const lines: PassLine[] = [];
-	for (let o = lo + w / 2; o < hi; o += w) {
+	// The last pass overlaps its neighbour rather than leave a strip unsprayed by the headland.
+	const nPasses = Math.max(1, Math.ceil((hi - lo) / w));
+	for (let k = 0; k < nPasses; k++) {
+		const o = Math.min(lo + w / 2 + k * w, hi - w / 2);
 		const spans = insideSpans([inner, ...holes], o * ax, o * ay, dx, dy);
 		if (spans.length) lines.push({ o, spans });
 	}
@@ -167,21 +170,31 @@ export function transit(path: Path, p: Xy): void {
 	path.to(p, false, ROAD_MPS, CORNER_MPS);
 }
 
-/** Entry point on the field's road side: 50 m out from the nearest corner of its outline. */
+/** Entry point: just outside the outline's corner nearest to `near`, in the road allowance
+ * (6 m out along both edges' outward normals; fields are 12 m or more apart). */
 export function gateOf(field: DemoField, near: Xy): Xy {
-	let best: Xy = field.parts[0][0][0];
+	let best: Xy = near;
 	let bestD = Infinity;
-	let centre: Xy = [0, 0];
 	for (const part of field.parts) {
 		const ring = part[0];
-		const c: Xy = [ring.reduce((s, q) => s + q[0], 0) / ring.length, ring.reduce((s, q) => s + q[1], 0) / ring.length];
-		for (const q of ring) {
+		const n = ring.length;
+		ring.forEach((q, i) => {
 			const d = Math.hypot(q[0] - near[0], q[1] - near[1]);
-			if (d < bestD) [best, bestD, centre] = [q, d, c];
-		}
+			if (d >= bestD) return;
+			// Outward normals of a counter-clockwise ring point right of each edge.
+			const out = (a: Xy, b: Xy): Xy => {
+				const l = Math.hypot(b[0] - a[0], b[1] - a[1]);
+				return [(b[1] - a[1]) / l, -(b[0] - a[0]) / l];
+			};
+			const n1 = out(ring[(i + n - 1) % n], q);
+			const n2 = out(q, ring[(i + 1) % n]);
+			// Along a straight stretch (a sampled curve) one normal is enough.
+			const same = n1[0] * n2[0] + n1[1] * n2[1] > 0.95;
+			best = same ? [q[0] + 6 * n1[0], q[1] + 6 * n1[1]] : [q[0] + 6 * (n1[0] + n2[0]), q[1] + 6 * (n1[1] + n2[1])];
+			bestD = d;
+		});
 	}
-	const l = Math.hypot(best[0] - centre[0], best[1] - centre[1]);
-	return [best[0] + ((best[0] - centre[0]) / l) * 50, best[1] + ((best[1] - centre[1]) / l) * 50];
+	return best;
 }
 
 /** The whole field, part after part, from wherever the path is. */

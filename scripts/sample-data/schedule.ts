@@ -142,9 +142,9 @@ export function fullLogs(): LogSpec[] {
 export function sampleLogs(): LogSpec[] {
 	const base = { farm: 'tallowgrass' as const, uploadedBy: SAM, machine: MAIN_SPRAYER, tankMix: 'Fallow knockdown', pass: 'spring' as const };
 	return [
-		{ ...base, file: 'sample-north-flat.csv', day: '2026-04-13', season: 2026, uploadedBy: NOOR, format: 'csv', startMin: 9 * 60 + 5, jobs: [{ field: 'North Flat', headlands: false, maxLengthM: 2700 }], from: [560, 1570] },
-		{ ...base, file: 'sample-home-place.geojson', day: '2026-04-16', season: 2026, format: 'geojson', startMin: 8 * 60 + 12, jobs: [{ field: 'Home Place', headlands: false, maxLengthM: 1400 }], from: [1300, 1580] },
-		{ ...base, file: 'sample-split-forty.zip', day: '2025-04-18', season: 2025, format: 'shapefile', startMin: 7 * 60 + 40, jobs: [{ field: 'Split Forty', headlands: false, maxLengthM: 4200 }], from: [3250, 1200] },
-		{ ...base, file: 'sample-two-fields.csv', day: '2026-04-14', season: 2026, uploadedBy: NOOR, format: 'csv', startMin: 13 * 60 + 20, jobs: [{ field: 'Coyote Draw', headlands: false, maxLengthM: 1000 }, { field: 'Little Draw', headlands: false, maxLengthM: 1100 }], from: [2460, 1590] }
+		{ ...base, file: 'sample-north-flat.csv', day: '2026-04-13', season: 2026, uploadedBy: NOOR, format: 'csv', startMin: 9 * 60 + 5, jobs: [{ field: 'North Flat', headlands: false, maxLengthM: 2700 }], from: [560, 1606] },
+		{ ...base, file: 'sample-home-place.geojson', day: '2026-04-16', season: 2026, format: 'geojson', startMin: 8 * 60 + 12, jobs: [{ field: 'Home Place', headlands: false, maxLengthM: 1400 }], from: [1300, 1606] },
+		{ ...base, file: 'sample-split-forty.zip', day: '2025-04-18', season: 2025, format: 'shapefile', startMin: 7 * 60 + 40, jobs: [{ field: 'Split Forty', headlands: false, maxLengthM: 4200 }], from: [3268, 1200] },
+		{ ...base, file: 'sample-two-fields.csv', day: '2026-04-14', season: 2026, uploadedBy: NOOR, format: 'csv', startMin: 13 * 60 + 20, jobs: [{ field: 'Coyote Draw', headlands: false, maxLengthM: 1000 }, { field: 'Little Draw', headlands: false, maxLengthM: 1100 }], from: [2460, 1606] }
 	];
 }
