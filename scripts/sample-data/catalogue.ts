@@ -8,13 +8,13 @@ export const DEMO_PASSWORD = 'patchbook-demo';
 export type DemoUser = { email: string; name: string; units: 'metric' | 'us' };
 
 export const USERS: DemoUser[] = [
-	{ email: 'mara@tallowgrass.example', name: 'Mara Lindqvist', units: 'us' },
-	{ email: 'dev@fieldwise-agronomy.example', name: 'Dev Okafor', units: 'metric' },
-	{ email: 'sam@tallowgrass.example', name: 'Sam Reyes', units: 'us' },
+	{ email: 'mara@tallowgrass.example', name: 'Mara Lindqvist', units: 'metric' },
+	{ email: 'dev@fieldwise-agronomy.example', name: 'Dev Okafor', units: 'us' },
+	{ email: 'sam@tallowgrass.example', name: 'Sam Reyes', units: 'metric' },
 	{ email: 'noor@tallowgrass.example', name: 'Noor Haddad', units: 'metric' },
 	{ email: 'helen.marsh@landowner.example', name: 'Helen Marsh', units: 'us' },
 	{ email: 'arvid.lund@landowner.example', name: 'Arvid Lund', units: 'metric' },
-	{ email: 'tom@brennancreek.example', name: 'Tom Achterberg', units: 'us' }
+	{ email: 'tom@brennancreek.example', name: 'Tom Achterberg', units: 'metric' }
 ];
 
 export const SAM = 'sam@tallowgrass.example';

@@ -28,7 +28,8 @@ test('an operator on a phone uploads a log, maps it and sees it processed', asyn
 	await expect(row).toContainText(day);
 	// Two passes that just touch: covered = 2 x length x 36.576 m; half the nozzles open: 50% sprayed.
 	const cells = await row.getByRole('cell').allTextContents();
-	const coveredHa = Number(cells[2].replace(/[^\d.]/g, ''));
+	// Shown in the operator's units: hectares, or acres (1 ac = 0.40468564224 ha, NIST SP 811).
+	const coveredHa = Number(cells[2].replace(/[^\d.]/g, '')) * (cells[2].includes('ac') ? 0.40468564224 : 1);
 	const expectedHa = (passes * lengthM * 36.576) / 1e4;
 	expect(Math.abs(coveredHa - expectedHa) / expectedHa).toBeLessThan(0.01);
 	expect(Number(cells[4])).toBeCloseTo(50, 0);
