@@ -36,3 +36,23 @@ test('sign-in page on a phone', async ({ page }) => {
 	await page.screenshot({ path: 'tests/screenshots/login-desktop.png' });
 	await expect(page.getByRole('button', { name: 'Sign in' })).toBeVisible();
 });
+
+test('the demo farm tells its three-season story: overview and a field page', async ({ page }) => {
+	await page.setViewportSize(viewports.desktop);
+	await signIn(page, people.manager);
+	for (const season of [2024, 2025, 2026]) {
+		await page.goto(`/tallowgrass?season=${season}`);
+		// Ten fields, each sprayed in the spring burndown of every season.
+		await expect(page.getByTestId('season-figures').locator('tbody tr')).toHaveCount(10);
+		await page.screenshot({ path: `tests/screenshots/demo-overview-${season}-desktop.png`, fullPage: true });
+	}
+	await page.goto('/tallowgrass/fields');
+	await page.getByRole('link', { name: 'Coyote Draw' }).click();
+	// Coyote Draw: a spring pass each season and the June residual patch programme in 2025.
+	await expect(page.getByTestId('field-applications').locator('tbody tr')).toHaveCount(4);
+	await page.screenshot({ path: 'tests/screenshots/demo-field-coyote-draw-desktop.png', fullPage: true });
+	await page.setViewportSize(viewports.phone);
+	await page.screenshot({ path: 'tests/screenshots/demo-field-coyote-draw-phone.png', fullPage: true });
+	await page.goto('/tallowgrass');
+	await page.screenshot({ path: 'tests/screenshots/demo-overview-phone.png', fullPage: true });
+});
