@@ -10,6 +10,10 @@ if [ ! -f node_modules/.package-lock.json ] || [ package-lock.json -nt node_modu
 	npm ci --no-audit --no-fund --loglevel=error
 fi
 
+# tsconfig's $lib paths (used by the TypeScript scripts run with tsx) come from SvelteKit's
+# generated .svelte-kit/tsconfig.json.
+[ -f .svelte-kit/tsconfig.json ] || npx svelte-kit sync
+
 if [ "${1:-}" = --browser ] && [ ! -x /usr/bin/chromium ]; then
 	echo "setup: installing Debian's chromium for the browser tests (apt-get)..."
 	if [ "$(id -u)" != 0 ]; then
