@@ -11,6 +11,7 @@ import { cleanFixes } from '../src/lib/compute/clean-fixes';
 import { splitByField } from '../src/lib/compute/split-by-field';
 import { computeCoverage, type CoverageTotals } from '../src/lib/compute/coverage';
 import {
+import { seededRandom } from '../src/lib/compute/seeded-random';
 	fieldScaleFactor,
 	gridSpecFor,
 	projectLngLat,
@@ -42,16 +43,6 @@ export const BENCH_FIELD: Polygon = {
 	coordinates: [[...OUTLINE_M, OUTLINE_M[0]].map(toLngLat)]
 };
 
-function seededRandom(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 /** Convex polygon moved inwards by d metres (each edge offset, neighbours intersected). */
 function inset(poly: [number, number][], d: number): [number, number][] {

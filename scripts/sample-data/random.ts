@@ -1,17 +1,9 @@
 // Seeded randomness: every stream is named, so one log can be regenerated alone and come out
 // byte for byte the same as in a full run.
 
-/** mulberry32: small, fast, good enough for invented data (not for anything secret). */
-export function seededRandom(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+import { seededRandom } from '../../src/lib/compute/seeded-random';
+
+export { seededRandom };
 
 /** FNV-1a of a name: a stable seed per stream ("weeds/Long Hill/2025"). */
 export function seedOf(name: string): number {

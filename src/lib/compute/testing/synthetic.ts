@@ -1,18 +1,8 @@
 // Invented logs for tests: paths in projected metres, fixes every `stepM` at 5 Hz, nozzles opened
 // by invented circular weed patches. Nothing here comes from a real field or machine.
 import type { BoomGeometry, FixColumns, SprayState } from '../types';
+import { seededRandom } from '../seeded-random';
 
-/** Mulberry32: a small seeded PRNG so every invented log is the same on every run. */
-export function seededRandom(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 export type Patch = { x: number; y: number; radiusM: number };
 
@@ -134,3 +124,5 @@ export function arc(cx: number, cy: number, radiusM: number, a0: number, a1: num
 export function ring(points: number[][]): Float64Array {
 	return Float64Array.from(points.flat());
 }
+
+export { seededRandom };
