@@ -1,4 +1,4 @@
-import { index, pgEnum, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { doublePrecision, index, pgEnum, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
 import { users } from './auth';
 
 export const farms = pgTable('farms', {
@@ -9,6 +9,9 @@ export const farms = pgTable('farms', {
 	timeZone: text().notNull().default('UTC'),
 	/** ISO 4217 code of the prices entered in the catalogue. */
 	currency: text().notNull().default('USD'),
+	/** A cell is a hotspot at or above this treated share (percent), with at least half of it
+	 * covered. Set by agronomists and managers; 20 % is a starting point (common practice, no source). */
+	hotspotThresholdPercent: doublePrecision().notNull().default(20),
 	createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 });
 export type Farm = typeof farms.$inferSelect;

@@ -1,0 +1,1 @@
+ALTER TABLE "farms" ADD COLUMN "hotspot_threshold_percent" double precision DEFAULT 20 NOT NULL;
