@@ -33,7 +33,8 @@ export const abilities = {
 	'catalogue.edit': ['manager'],
 	'uploads.create': ['manager', 'operator'],
 	'uploads.delete': ['manager'],
-	'team.manage': ['manager']
+	'team.manage': ['manager'],
+	'hotspots.set': ['manager', 'agronomist']
 } as const satisfies Record<string, readonly Role[]>;
 export type Ability = keyof typeof abilities;
 
