@@ -10,8 +10,8 @@ import type { BoomGeometry, CleaningReport, FixColumns } from '../src/lib/comput
 import { cleanFixes } from '../src/lib/compute/clean-fixes';
 import { splitByField } from '../src/lib/compute/split-by-field';
 import { computeCoverage, type CoverageTotals } from '../src/lib/compute/coverage';
-import {
 import { seededRandom } from '../src/lib/compute/seeded-random';
+import {
 	fieldScaleFactor,
 	gridSpecFor,
 	projectLngLat,
