@@ -18,7 +18,7 @@ export const limits = {
 	nozzleFlowLPerS: [0.05 / 60, 20 / 60],
 	referencePressurePa: [0.5e5, 10e5],
 	/** Boom width and nozzle count x spacing must agree this closely (relative). */
-	boomMismatch: 0.02,
+	boomMismatch: 0.01,
 	carrierRateLPerM2: [5e-4, 500e-4],
 	/** Outside this carrier rate range the form saves but warns. */
 	usualCarrierRateLPerM2: [20e-4, 200e-4],
