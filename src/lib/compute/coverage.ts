@@ -30,6 +30,9 @@ export type CoverageOptions = {
 	maxSpeedMPerS?: number;
 	/** Memory for the two bit rasters; larger bounding boxes are processed in row strips. */
 	maxRasterBytes?: number;
+	/** Draw only the part of the region the fixes can reach (their extent plus half a boom):
+	 * the same figures, less raster for a log that covers part of a field. */
+	windowToFixes?: boolean;
 };
 
 export type CoverageTotals = {
@@ -66,7 +69,40 @@ export function computeCoverage(
 	options: CoverageOptions
 ): CoverageResult {
 	const g = input.grid;
-	return rasterise(input, region, { col0: 0, row0: 0, cols: g.cols, rows: g.rows }, options);
+	const whole = { col0: 0, row0: 0, cols: g.cols, rows: g.rows };
+	return rasterise(input, region, options.windowToFixes ? fixesWindow(input, whole) : whole, options);
+}
+
+/** The cells of `whole` within reach of the fixes that start or end a drawn interval. */
+function fixesWindow(input: CoverageInput, whole: Window): Window {
+	const { x, y, grid: g } = input;
+	const reach = (input.boom.boomWidthM / 2) * input.scaleFactor + g.cellSizeM;
+	let minX = Infinity;
+	let minY = Infinity;
+	let maxX = -Infinity;
+	let maxY = -Infinity;
+	const take = (i: number) => {
+		const px = x[i];
+		const py = y[i];
+		if (!Number.isFinite(px) || !Number.isFinite(py)) return;
+		if (px < minX) minX = px;
+		if (px > maxX) maxX = px;
+		if (py < minY) minY = py;
+		if (py > maxY) maxY = py;
+	};
+	if (input.starts) {
+		for (let j = 0; j < input.starts.length; j++) {
+			take(input.starts[j]);
+			if (input.starts[j] + 1 < x.length) take(input.starts[j] + 1);
+		}
+	} else for (let i = 0; i < x.length; i++) take(i);
+	if (!Number.isFinite(minX)) return { ...whole, cols: 1, rows: 1 };
+	const col0 = Math.max(whole.col0, Math.floor((minX - reach - g.originX) / g.cellSizeM));
+	const row0 = Math.max(whole.row0, Math.floor((minY - reach - g.originY) / g.cellSizeM));
+	const col1 = Math.min(whole.col0 + whole.cols, Math.ceil((maxX + reach - g.originX) / g.cellSizeM));
+	const row1 = Math.min(whole.row0 + whole.rows, Math.ceil((maxY + reach - g.originY) / g.cellSizeM));
+	if (col1 <= col0 || row1 <= row0) return { ...whole, cols: 1, rows: 1 };
+	return { col0, row0, cols: col1 - col0, rows: row1 - row0 };
 }
 
 /**

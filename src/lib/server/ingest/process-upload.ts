@@ -92,7 +92,7 @@ export function computeApplication(
 	return computeCoverage(
 		{ x, y, fixes, starts, boom: machine, scaleFactor, grid },
 		projectRings(grid.proj, boundary),
-		{ defaultRateLPerM2: carrierRateLPerM2 }
+		{ defaultRateLPerM2: carrierRateLPerM2, windowToFixes: true }
 	);
 }
 
