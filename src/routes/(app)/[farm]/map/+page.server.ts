@@ -1,7 +1,30 @@
-import { requireRole } from '$lib/server/auth/guard';
-import type { PageServerLoad } from './$types';
+import { fail } from '@sveltejs/kit';
+import { eq } from 'drizzle-orm';
+import { may, requireRole } from '$lib/server/auth/guard';
+import { db } from '$lib/server/db';
+import { farms } from '$lib/server/db/schema';
+import { setHotspotThreshold } from '$lib/server/farms';
+import * as fields from '$lib/server/fields';
+import type { Actions, PageServerLoad } from './$types';
 
+// The page loads only what frames the map; seasons, figures and cells come from the map's JSON
+// and tile APIs in the browser, so changing the season or the threshold does not reload the page.
 export const load: PageServerLoad = async (event) => {
-	await requireRole(event, 'map');
-	return {};
+	const actor = await requireRole(event, 'map');
+	const [fieldMap, [farm]] = await Promise.all([
+		fields.featureCollection(actor),
+		db.select({ threshold: farms.hotspotThresholdPercent }).from(farms).where(eq(farms.id, actor.farm.id))
+	]);
+	return { fieldMap, thresholdPercent: farm.threshold, canSetThreshold: may(actor.role, 'hotspots.set') };
+};
+
+export const actions: Actions = {
+	threshold: async (event) => {
+		const actor = await requireRole(event, 'hotspots.set');
+		const raw = String((await event.request.formData()).get('threshold') ?? '').trim();
+		const percent = raw === '' ? NaN : Number(raw);
+		const result = await setHotspotThreshold(actor, percent);
+		if ('error' in result) return fail(400, { action: 'threshold', message: result.error, value: raw });
+		return { action: 'threshold', saved: true, thresholdPercent: result.percent };
+	}
 };
