@@ -1,0 +1,76 @@
+// The map's API and tiles through HTTP: scoping by role and farm, gzip, ETag and 304, 204 when empty.
+import { expect, test, type APIRequestContext, type Page } from '@playwright/test';
+import { tilesForBbox, type Bbox } from '../../src/lib/geo/tiles';
+import { people, signIn } from './helpers';
+
+type FieldFeature = { properties: { id: string; name: string }; geometry: { type: 'Polygon'; coordinates: number[][][] } | { type: 'MultiPolygon'; coordinates: number[][][][] } };
+
+async function fieldsOf(request: APIRequestContext): Promise<FieldFeature[]> {
+	return (await (await request.get('/api/farms/tallowgrass/fields/geojson')).json()).features;
+}
+
+/** A z15 tile over the middle of the field's outline bbox. */
+function tileOver(f: FieldFeature, z = 15): string {
+	const positions = (f.geometry.type === 'Polygon' ? f.geometry.coordinates : f.geometry.coordinates.flat()).flat();
+	const lngs = positions.map((p) => p[0]);
+	const lats = positions.map((p) => p[1]);
+	const lng = (Math.min(...lngs) + Math.max(...lngs)) / 2;
+	const lat = (Math.min(...lats) + Math.max(...lats)) / 2;
+	const [[, x, y]] = tilesForBbox([lng, lat, lng, lat] as Bbox, z);
+	return `${z}/${x}/${y}`;
+}
+
+async function as(page: Page, who: string) {
+	await page.context().clearCookies();
+	await signIn(page, who);
+	return page.request;
+}
+
+test('cell tiles: gzip MVT with an ETag for the manager, 204 for a landlord outside the grants, 404 for another farm', async ({ page, request }) => {
+	expect((await request.get('/api/farms/tallowgrass/tiles/cells/15/0/0?season=2025')).status()).toBe(401);
+	expect((await request.get('/api/basemap/3/1/3')).status()).toBe(401);
+
+	const manager = await as(page, people.manager);
+	const meta = await (await manager.get('/api/farms/tallowgrass/map/meta')).json();
+	expect(meta.seasons).toEqual([2026, 2025, 2024]);
+	expect(meta.canSetThreshold).toBe(true);
+	const all = await fieldsOf(manager);
+	const notGranted = all.find((f) => f.properties.name === 'Long Hill')!;
+	const granted = all.find((f) => f.properties.name === 'North Flat')!;
+	const overLongHill = `/api/farms/tallowgrass/tiles/cells/${tileOver(notGranted)}.pbf?season=2025`;
+
+	const tile = await manager.get(overLongHill);
+	expect(tile.status()).toBe(200);
+	expect(tile.headers()['content-encoding']).toBe('gzip');
+	expect(tile.headers()['content-type']).toBe('application/vnd.mapbox-vector-tile');
+	expect(tile.headers()['cache-control']).toContain('private');
+	// Playwright, like fetch, hands back the body un-gzipped: an MVT layer named "cells" is in it.
+	expect((await tile.body()).includes(Buffer.from('cells'))).toBe(true);
+	const etag = tile.headers()['etag'];
+	const again = await manager.get(overLongHill, { headers: { 'if-none-match': etag } });
+	expect(again.status()).toBe(304);
+
+	const summary = await (await manager.get('/api/farms/tallowgrass/map/summary?season=2025')).json();
+	expect(summary.perField.map((f: { name: string }) => f.name)).toContain('Long Hill');
+	expect((await manager.get('/api/farms/tallowgrass/map/summary?season=25')).status()).toBe(400);
+	expect((await manager.get(`/api/farms/tallowgrass/map/cell?field=${notGranted.properties.id}&col=10&row=10`)).status()).toBe(200);
+
+	const basemap = await manager.get('/api/basemap/3/1/3');
+	expect(basemap.status()).toBe(200);
+	expect(basemap.headers()['content-encoding']).toBe('gzip');
+
+	const landlord = await as(page, people.landlord);
+	expect((await landlord.get(overLongHill)).status()).toBe(204);
+	expect((await landlord.get(`/api/farms/tallowgrass/tiles/cells/${tileOver(granted)}?season=2025`)).status()).toBe(200);
+	expect((await landlord.get(`/api/farms/tallowgrass/map/cell?field=${notGranted.properties.id}&col=10&row=10`)).status()).toBe(404);
+	const landlordSummary = await (await landlord.get('/api/farms/tallowgrass/map/summary?season=2025')).json();
+	expect(landlordSummary.perField.map((f: { name: string }) => f.name).sort()).toEqual(['North Flat', 'Schoolhouse']);
+	const landlordMeta = await (await landlord.get('/api/farms/tallowgrass/map/meta')).json();
+	expect(new Set(landlordMeta.applications.map((a: { fieldName: string }) => a.fieldName))).toEqual(new Set(['North Flat', 'Schoolhouse']));
+	expect(landlordMeta.canSetThreshold).toBe(false);
+
+	const other = await as(page, people.otherFarmManager);
+	for (const path of [overLongHill, '/api/farms/tallowgrass/map/meta', '/api/farms/tallowgrass/map/summary?season=2025']) {
+		expect((await other.get(path)).status(), path).toBe(404);
+	}
+});
