@@ -40,41 +40,50 @@ function applicationScope(actor: Actor) {
 		: eq(applications.farmId, actor.farm.id);
 }
 
+// Grid bounds cost a few hundred projections per farm; they change only with the grid.
+const bboxMemo = new Map<string, Bbox>();
+function memoGridBbox(key: string, grid: GridSpec): Bbox {
+	let b = bboxMemo.get(key);
+	if (!b) {
+		if (bboxMemo.size > 10_000) bboxMemo.clear();
+		b = gridBbox(grid);
+		bboxMemo.set(key, b);
+	}
+	return b;
+}
+
+/** One query: the visible fields' grids and what the farm's map data version depends on. */
 export async function mapContext(actor: Actor): Promise<MapContext> {
-	const [rows, versionRows] = await Promise.all([
-		db
-			.select({
-				id: fields.id,
-				name: fields.name,
-				updatedAt: fields.updatedAt,
-				proj: fields.gridProj,
-				epsg: fields.gridEpsg,
-				cellSizeM: fields.gridCellM,
-				originX: fields.gridOriginX,
-				originY: fields.gridOriginY,
-				cols: fields.gridCols,
-				rows: fields.gridRows
-			})
-			.from(fields)
-			.where(fieldScope(actor))
-			.orderBy(asc(fields.id)),
-		db.execute<{ threshold: number; computed: string | null; n: number }>(sql`
-			select f.hotspot_threshold_percent as threshold,
-				(select max(computed_at)::text from applications where farm_id = f.id) as computed,
-				(select count(*)::int from applications where farm_id = f.id) as n
-			from farms f where f.id = ${actor.farm.id}`)
-	]);
-	const v = versionRows[0];
-	let latestEdit = 0;
-	const mapFields = rows.map((r) => {
-		latestEdit = Math.max(latestEdit, r.updatedAt.getTime());
-		const grid: GridSpec = { proj: r.proj, epsg: r.epsg, cellSizeM: r.cellSizeM, originX: r.originX, originY: r.originY, cols: r.cols, rows: r.rows };
-		return { id: r.id, name: r.name, grid, bbox: gridBbox(grid) };
-	});
+	const granted =
+		actor.role === 'landlord'
+			? sql`and f.id in (select field_id from landlord_grants where farm_id = ${actor.farm.id} and user_id = ${actor.user.id})`
+			: sql``;
+	type Raw = {
+		threshold: number; computed: string | null; n: number;
+		id: string | null; name: string; updated: string; proj: string; epsg: number | null; cell: number; ox: number; oy: number; cols: number; rows: number;
+	};
+	const rows = await db.execute<Raw>(sql`
+		select fa.hotspot_threshold_percent as threshold,
+			(select max(computed_at)::text from applications where farm_id = fa.id) as computed,
+			(select count(*)::int from applications where farm_id = fa.id) as n,
+			f.id, f.name, f.updated_at::text as updated, f.grid_proj as proj, f.grid_epsg as epsg, f.grid_cell_m as cell,
+			f.grid_origin_x as ox, f.grid_origin_y as oy, f.grid_cols as cols, f.grid_rows as rows
+		from farms fa left join fields f on f.farm_id = fa.id ${granted}
+		where fa.id = ${actor.farm.id}
+		order by f.id`);
+	const v = rows[0];
+	const mapFields: MapField[] = [];
+	let edits = '';
+	for (const r of rows) {
+		if (!r.id) continue;
+		const grid: GridSpec = { proj: r.proj, epsg: r.epsg, cellSizeM: r.cell, originX: r.ox, originY: r.oy, cols: r.cols, rows: r.rows };
+		mapFields.push({ id: r.id, name: r.name, grid, bbox: memoGridBbox(`${r.id}|${r.updated}`, grid) });
+		if (r.updated > edits) edits = r.updated;
+	}
 	return {
 		fields: mapFields,
 		savedThresholdPercent: v?.threshold ?? 20,
-		version: `${v?.computed ?? '-'}/${v?.n ?? 0}/${latestEdit}/${rows.length}/${v?.threshold}`,
+		version: `${v?.computed ?? '-'}/${v?.n ?? 0}/${edits}/${mapFields.length}/${v?.threshold}`,
 		scopeKey: actor.role === 'landlord' ? mapFields.map((f) => f.id).join(',') : 'all'
 	};
 }
