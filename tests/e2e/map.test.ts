@@ -87,6 +87,7 @@ test('cells of the hot fields show the ramp, another season draws differently; d
 	// Farm view first: the map is not blank (fields and cells drawn over the paper).
 	const farm = await rampPixels(page);
 	expect(farm.ramp).toBeGreaterThan(200);
+	await page.screenshot({ path: 'tests/screenshots/map-farm-desktop.png' });
 
 	await showField(page, 'Little Draw');
 	const latest = await rampPixels(page);
@@ -107,6 +108,15 @@ test('compare mode counts persistent, new and cleared hotspots', async ({ page }
 	test.setTimeout(120_000);
 	await page.setViewportSize(viewports.desktop);
 	await openMap(page);
+	// One application: its own cells only, fewer than the whole season's.
+	const seasonCells = Number(await page.getByTestId('cell-count').getAttribute('data-count'));
+	await page.getByRole('button', { name: 'Application', exact: true }).click();
+	await expect(page.getByTestId('map-figures')).toHaveAttribute('data-query', /^application=/);
+	await drawn(page, 'application=');
+	const applicationCells = Number(await page.getByTestId('cell-count').getAttribute('data-count'));
+	expect(applicationCells).toBeGreaterThan(0);
+	expect(applicationCells).toBeLessThan(seasonCells);
+
 	await page.getByRole('button', { name: 'Compare', exact: true }).click();
 	const table = page.getByTestId('compare-counts');
 	await expect(table).toBeVisible({ timeout: 20_000 });
@@ -189,6 +199,13 @@ test('clicking a cell shows its history; the view saves as a PNG', async ({ page
 	expect(width).toBe(pixels.width);
 	expect(height).toBeGreaterThan(pixels.height); // the key is drawn under the map
 	expect(file.length).toBeGreaterThan(20_000);
+	await download.saveAs('tests/screenshots/map-export.png');
+
+	// Keyboard: focus the map and press Enter to pick what is under its centre.
+	await page.getByRole('button', { name: 'Close the cell details' }).click();
+	await page.locator('.maplibregl-canvas').focus();
+	await page.keyboard.press('Enter');
+	await expect(page.getByTestId('cell-details').or(page.getByTestId('field-details'))).toBeVisible();
 });
 
 test('phone: the map fills the screen and the sheet opens and closes', async ({ page }) => {
