@@ -3,6 +3,7 @@ import { building } from '$app/environment';
 import { env } from '$env/dynamic/private';
 import { startWorker, stopWorker } from '$lib/server/jobs/worker-process';
 import { stopQueue } from '$lib/server/jobs/app-queue';
+import { client } from '$lib/server/db';
 import {
 	clearSessionCookie,
 	sessionCookieName,
@@ -13,10 +14,12 @@ import {
 export const init: ServerInit = () => {
 	if (building) return;
 	startWorker({ DATABASE_URL: env.DATABASE_URL, PATCHBOOK_WORKER: env.PATCHBOOK_WORKER });
-	// adapter-node's graceful shutdown: let the worker finish its job and close the queue.
-	process.once('sveltekit:shutdown', () => {
+	// adapter-node's graceful shutdown: let the worker finish its job, then close the queue and
+	// the database pool, whose open connections would otherwise keep the process alive.
+	process.once('sveltekit:shutdown', async () => {
 		stopWorker();
-		void stopQueue();
+		await stopQueue();
+		await client.end({ timeout: 5 });
 	});
 };
 
