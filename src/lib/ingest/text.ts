@@ -97,6 +97,11 @@ export async function collectBytes(
 		if (total > maxBytes) throw new RangeError(`larger than ${maxBytes} bytes`);
 		parts.push(chunk);
 	}
+	return concatBytes(parts, total);
+}
+
+/** Chunks joined into one array of `total` bytes (the first chunk itself when there is one). */
+export function concatBytes(parts: Uint8Array[], total: number): Uint8Array {
 	if (parts.length === 1) return parts[0];
 	const out = new Uint8Array(total);
 	let at = 0;

@@ -4,6 +4,7 @@
 // inflater, counting real output so a lying header cannot get past the caps.
 import { Inflate } from 'fflate';
 import { IngestError } from './issues';
+import { concatBytes } from './text';
 
 export type ZipLimits = {
 	/** Sum of all inflated entries, bytes. */
@@ -163,7 +164,7 @@ export function unzipSafe(
 				if (err instanceof IngestError) throw err;
 				throw new IngestError(file, `zip entry '${entry.name}' is damaged (${err instanceof Error ? err.message : err})`);
 			}
-			inflated = concat(parts, produced);
+			inflated = concatBytes(parts, produced);
 		}
 		if (inflated.length !== entry.size)
 			throw new IngestError(file, `zip entry '${entry.name}' inflated to ${inflated.length} bytes, not the declared ${entry.size}`);
@@ -188,16 +189,6 @@ function tooBig(file: string, bytes: number, lim: ZipLimits) {
 	return new IngestError(file, `unzips to more than ${mb(lim.maxTotalBytes)} (at least ${mb(bytes)}); refused`);
 }
 
-function concat(parts: Uint8Array[], total: number): Uint8Array {
-	if (parts.length === 1) return parts[0];
-	const out = new Uint8Array(total);
-	let at = 0;
-	for (const p of parts) {
-		out.set(p, at);
-		at += p.length;
-	}
-	return out;
-}
 
 /** True when the bytes start like a zip archive (local file header or empty archive). */
 export function looksLikeZip(bytes: Uint8Array): boolean {
