@@ -12,6 +12,7 @@ export const people = {
 
 export async function signIn(page: Page, email: string, pass = password) {
 	await page.goto('/login');
+	await page.locator('html[data-hydrated="true"]').waitFor();
 	await page.getByLabel('E-mail').fill(email);
 	await page.getByLabel('Password').fill(pass);
 	await page.getByRole('button', { name: 'Sign in' }).click();

@@ -133,25 +133,43 @@ export function cellCornersLngLat(grid: GridSpec, col: number, row: number, span
 }
 
 /**
- * Draws cells of one grid into one tile: `(col, row, span)` gives the closed ring of the cell (or
- * of the span x span block starting there) in integer tile coordinates, wound clockwise on screen
- * as MVT 2.1 (section 4.3.4.4) wants for exterior rings, or null when it lies wholly outside the
- * tile plus `buffer`. Corners are projected once and shared by the cells that meet there.
+ * The corners of a grid's cells in Web Mercator at z0 (0..1 across the world), projected once
+ * each and remembered: the pre-rendered pyramid draws the same corners at eight zooms.
  */
-export function cellRingDrawer(grid: GridSpec, z: number, x: number, y: number, { extent = TILE_EXTENT, buffer = 64 } = {}) {
+export function gridWorldCorners(grid: GridSpec): (i: number, j: number) => [number, number] {
 	const c = converter(grid.proj);
 	const corners = new Map<number, [number, number]>();
 	const stride = grid.rows + 64;
-	const corner = (i: number, j: number): [number, number] => {
+	return (i, j) => {
 		const key = i * stride + j;
 		let p = corners.get(key);
 		if (!p) {
 			const [lng, lat] = c.inverse([grid.originX + i * grid.cellSizeM, grid.originY + j * grid.cellSizeM]);
-			const [px, py] = lngLatToTilePixel(z, x, y, lng, lat, extent);
-			p = [Math.round(px), Math.round(py)];
+			p = lngLatToWorld(0, lng, lat);
 			corners.set(key, p);
 		}
 		return p;
+	};
+}
+
+/**
+ * Draws cells of one grid into one tile: `(col, row, span)` gives the closed ring of the cell (or
+ * of the span x span block starting there) in integer tile coordinates, wound clockwise on screen
+ * as MVT 2.1 (section 4.3.4.4) wants for exterior rings, or null when it lies wholly outside the
+ * tile plus `buffer`. Corners are projected once and shared by the cells that meet there; pass
+ * `corners` to share them between tiles too.
+ */
+export function cellRingDrawer(
+	grid: GridSpec,
+	z: number,
+	x: number,
+	y: number,
+	{ extent = TILE_EXTENT, buffer = 64, corners = gridWorldCorners(grid) } = {}
+) {
+	const n = 2 ** z;
+	const corner = (i: number, j: number): [number, number] => {
+		const [mx, my] = corners(i, j);
+		return [Math.round((mx * n - x) * extent), Math.round((my * n - y) * extent)];
 	};
 	return (col: number, row: number, span = 1): Ring | null => {
 		const sw = corner(col, row);

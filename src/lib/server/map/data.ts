@@ -52,6 +52,21 @@ function memoGridBbox(key: string, grid: GridSpec): Bbox {
 	return b;
 }
 
+/**
+ * The map data version of a farm as every member but a landlord sees it, as SQL text: changes
+ * when results are recomputed or removed, a field is added, edited or removed, or the threshold is
+ * saved. mapContext builds the same text over its scoped fields. With `seasons` (a condition on
+ * applications.season) it is the version of those seasons' data only: the pre-rendered pyramid
+ * stores each season under its own, so new results for one season leave the others' tiles be.
+ */
+export function farmVersionSql(farmId: SQL, seasons: SQL = sql`true`): SQL {
+	return sql`(coalesce((select max(computed_at)::text from applications where farm_id = ${farmId} and ${seasons}), '-') || '/' ||
+		(select count(*) from applications where farm_id = ${farmId} and ${seasons}) || '/' ||
+		coalesce((select max(updated_at)::text from fields where farm_id = ${farmId}), '') || '/' ||
+		(select count(*) from fields where farm_id = ${farmId}) || '/' ||
+		(select hotspot_threshold_percent::text from farms where id = ${farmId}))`;
+}
+
 /** One query: the visible fields' grids and what the farm's map data version depends on. */
 export async function mapContext(actor: Actor): Promise<MapContext> {
 	const granted =
@@ -59,13 +74,15 @@ export async function mapContext(actor: Actor): Promise<MapContext> {
 			? sql`and f.id in (select field_id from landlord_grants where farm_id = ${actor.farm.id} and user_id = ${actor.user.id})`
 			: sql``;
 	type Raw = {
-		threshold: number; computed: string | null; n: number;
+		threshold: number; version: string;
 		id: string | null; name: string; updated: string; proj: string; epsg: number | null; cell: number; ox: number; oy: number; cols: number; rows: number;
 	};
 	const rows = await db.execute<Raw>(sql`
 		select fa.hotspot_threshold_percent as threshold,
-			(select max(computed_at)::text from applications where farm_id = fa.id) as computed,
-			(select count(*)::int from applications where farm_id = fa.id) as n,
+			coalesce((select max(computed_at)::text from applications where farm_id = fa.id), '-') || '/' ||
+				(select count(*) from applications where farm_id = fa.id) || '/' ||
+				coalesce((max(f.updated_at) over ())::text, '') || '/' || (count(f.id) over ()) || '/' ||
+				fa.hotspot_threshold_percent::text as version,
 			f.id, f.name, f.updated_at::text as updated, f.grid_proj as proj, f.grid_epsg as epsg, f.grid_cell_m as cell,
 			f.grid_origin_x as ox, f.grid_origin_y as oy, f.grid_cols as cols, f.grid_rows as rows
 		from farms fa left join fields f on f.farm_id = fa.id ${granted}
@@ -73,17 +90,15 @@ export async function mapContext(actor: Actor): Promise<MapContext> {
 		order by f.id`);
 	const v = rows[0];
 	const mapFields: MapField[] = [];
-	let edits = '';
 	for (const r of rows) {
 		if (!r.id) continue;
 		const grid: GridSpec = { proj: r.proj, epsg: r.epsg, cellSizeM: r.cell, originX: r.ox, originY: r.oy, cols: r.cols, rows: r.rows };
 		mapFields.push({ id: r.id, name: r.name, grid, bbox: memoGridBbox(`${r.id}|${r.updated}`, grid) });
-		if (r.updated > edits) edits = r.updated;
 	}
 	return {
 		fields: mapFields,
 		savedThresholdPercent: v?.threshold ?? 20,
-		version: `${v?.computed ?? '-'}/${v?.n ?? 0}/${edits}/${mapFields.length}/${v?.threshold}`,
+		version: v?.version ?? '-',
 		scopeKey: actor.role === 'landlord' ? mapFields.map((f) => f.id).join(',') : 'all'
 	};
 }

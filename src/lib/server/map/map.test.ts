@@ -1,22 +1,24 @@
 // The map's data functions and tiles against real rows. All figures are invented; expected values
 // follow by hand from the definitions in the map contract (issue 5): share = sprayed / covered
 // summed over the season's applications, cover = the largest single application's covered
-// fraction, hot = share ≥ threshold and cover ≥ 0.5; 4 x 4 blocks below z15.
+// fraction, hot = share ≥ threshold and cover ≥ 0.5; blocks below z15 (2 x 2 at z14, doubling per zoom out).
 import { gunzipSync } from 'node:zlib';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { eq, sql } from 'drizzle-orm';
 import { PbfReader } from 'pbf';
 import { VectorTile } from '@mapbox/vector-tile';
 import { db } from '$lib/server/db';
-import { applications, cellResults, farms, fields, tankMixes } from '$lib/server/db/schema';
+import { applications, cellResults, farms, fields, mapTileSets, tankMixes } from '$lib/server/db/schema';
 import type { Actor } from '$lib/server/auth/guard';
 import { grant, join, makeFarm, makeUser } from '$lib/server/testing/fixtures';
 import { fieldGeometryColumns } from '$lib/geo/field-geometry';
-import { cellCornersLngLat, tilesForBbox } from '$lib/geo/tiles';
+import { cellCornersLngLat, gridBbox as mapBbox, tilesForBbox } from '$lib/geo/tiles';
 import type { GridSpec } from '$lib/compute/types';
-import { cellHistory, meta, summary } from './data';
-import { parseMapQuery, type MapQuery } from './dataset';
-import { cellsTile, parseTileParams } from './tiles';
+import { cellHistory, cellRows, farmVersionSql, mapContext, meta, summary, type CellRegion } from './data';
+import { datasetKey, parseMapQuery, type Dataset, type MapQuery } from './dataset';
+import { cellsTile, clearTileCache, drawCellsTile, parseTileParams, type RowsFor } from './tiles';
+import { farmsNeedingPyramid, pyramidDatasets, renderFarmPyramid } from './pyramid-render';
+import { seededRandom } from '$lib/compute/seeded-random';
 import { basemapTile } from './basemap';
 import { LruCache } from './cache';
 
@@ -98,10 +100,13 @@ describe('cell tiles', () => {
 		expect(props!.length).toBe(2);
 	});
 
-	it('4 x 4 blocks below z15, covered-area-weighted', async () => {
-		const props = await features(manager, season(2025), tileOf(fieldA.grid, 2, 3, 14));
-		// Block (0,0) holds (2,3) and (3,3): 90 / 220 = 40.9 %; cover (100·1 + 100·0.4) / 200 = 0.7.
-		expect(props).toEqual([{ field: fieldA.id, col: 0, row: 0, share: 40.9, cover: 0.7, hot: 1 }]);
+	it('blocks below z15, doubling per zoom out, covered-area-weighted', async () => {
+		// At z13 a block is 4 x 4: block (0,0) holds (2,3) and (3,3): 90 / 220 = 40.9 %; cover (100·1 + 100·0.4) / 200 = 0.7.
+		expect((await features(manager, season(2025), tileOf(fieldA.grid, 2, 3, 13)))!.filter((p) => p.field === fieldA.id)).toEqual([{ field: fieldA.id, col: 0, row: 0, span: 4, share: 40.9, cover: 0.7, hot: 1 }]);
+		// At z14, 2 x 2: (2,3) and (3,3) fall in blocks (2,2), with the same figures.
+		expect((await features(manager, season(2025), tileOf(fieldA.grid, 2, 3, 14)))!.filter((p) => p.field === fieldA.id)).toEqual([{ field: fieldA.id, col: 2, row: 2, span: 2, share: 40.9, cover: 0.7, hot: 1 }]);
+		// At z11, 16 x 16.
+		expect((await features(manager, season(2025), tileOf(fieldA.grid, 2, 3, 11)))!.filter((p) => p.field === fieldA.id)).toEqual([{ field: fieldA.id, col: 0, row: 0, span: 16, share: 40.9, cover: 0.7, hot: 1 }]);
 	});
 
 	it('no cells below z11', async () => {
@@ -240,4 +245,83 @@ describe('basemap', () => {
 		expect((await basemapTile(6, 31, 36)).body).toBeNull();
 		expect((await basemapTile(11, 0, 0)).body).toBeNull();
 	}, 30_000);
+});
+
+describe('pre-rendered pyramid', () => {
+	const live = async (q: MapQuery, [z, x, y]: number[]) => {
+		const ctx = await mapContext(manager);
+		const rowsFor = ((d: Dataset, regions: CellRegion[], span: number) => cellRows(manager, d, regions, span)) as RowsFor;
+		return drawCellsTile(ctx.fields, q.dataset, q.thresholdPercent ?? ctx.savedThresholdPercent, z, x, y, rowsFor);
+	};
+
+	beforeAll(async () => {
+		// A denser patch on field B in 2024 (seeded), so blocks below z15 aggregate many cells.
+		const random = seededRandom(7);
+		const cells: [number, number, number, number, number][] = [];
+		for (let col = 0; col < 24; col++) for (let row = 0; row < 24; row++) if (random() < 0.6) cells.push([col, row, 100, 100 * random(), 30 * random()]);
+		await addApplication('b2024', fieldB.id, (await db.select().from(tankMixes).where(eq(tankMixes.farmId, farm.id)))[0].id, '2024-06-02', cells);
+	});
+
+	it("a manager's map version is the farm-wide version the pyramid is stored under", async () => {
+		const [{ v }] = await db.execute<{ v: string }>(sql`select ${farmVersionSql(sql`${farm.id}::uuid`)} as v`);
+		expect((await mapContext(manager)).version).toBe(v);
+		expect((await mapContext(landlord)).version).not.toBe(v); // one field of two
+	});
+
+	it('lists each season and the pairs of the latest seasons', () => {
+		expect(pyramidDatasets([2024, 2026, 2025, 2025]).map(datasetKey)).toEqual(['s2026', 's2025', 's2024', 'c2025-2026', 'c2024-2026', 'c2024-2025']);
+	});
+
+	it('stores tiles byte for byte equal to the live ones, and serves them while the data stands', async () => {
+		expect(await farmsNeedingPyramid()).toContain(farm.id);
+		const sets = await renderFarmPyramid(farm.id);
+		expect(sets!.map((s) => s.dataset).sort()).toEqual(['c2024-2025', 's2024', 's2025']);
+		expect(await farmsNeedingPyramid()).not.toContain(farm.id);
+		expect(await renderFarmPyramid(farm.id)).toEqual([]);
+
+		const compare: MapQuery = { dataset: { kind: 'compare', earlier: 2024, later: 2025 }, thresholdPercent: null };
+		let compared = 0;
+		for (const q of [season(2024), season(2025), compare]) {
+			for (const z of [11, 12, 13, 14, 15, 16, 17, 18]) {
+				for (const [, x, y] of tilesForBbox(mapBbox(fieldB.grid), z)) {
+					const served = await cellsTile(manager, q, z, x, y);
+					const expected = await live(q, [z, x, y]);
+					if (q.dataset.kind === 'compare' && z > 16) {
+						expect(served.etag.startsWith('"p-')).toBe(false); // past the stored zooms: drawn live
+					} else {
+						expect(served.etag.startsWith('"p-')).toBe(true);
+					}
+					expect(served.body === null ? null : Buffer.compare(served.body, expected!)).toBe(expected === null ? null : 0);
+					if (served.body) compared++;
+				}
+			}
+		}
+		expect(compared).toBeGreaterThan(20);
+	});
+
+	it('is not used for a landlord, a threshold preview, one application or data newer than the set', async () => {
+		const [z, x, y] = tileOf(fieldA.grid, 2, 3, 15);
+		expect((await cellsTile(manager, season(2025), z, x, y)).etag.startsWith('"p-')).toBe(true);
+		expect((await cellsTile(landlord, season(2025), z, x, y)).etag.startsWith('"p-')).toBe(false);
+		expect((await cellsTile(manager, season(2025, 35), z, x, y)).etag.startsWith('"p-')).toBe(false);
+		const app: MapQuery = { dataset: { kind: 'application', applicationId: apps.a2025b }, thresholdPercent: null };
+		expect((await cellsTile(manager, app, z, x, y)).etag.startsWith('"p-')).toBe(false);
+
+		const setIds = async () => new Map((await db.select().from(mapTileSets).where(eq(mapTileSets.farmId, farm.id))).map((s) => [s.dataset, s.id]));
+		const before = await setIds();
+		await db.execute(sql`update applications set computed_at = now() + interval '2 seconds' where id = ${apps.a2025b}`);
+		expect((await cellsTile(manager, season(2025), z, x, y)).etag.startsWith('"p-')).toBe(false);
+		expect(await farmsNeedingPyramid()).toContain(farm.id);
+		// Only what draws on 2025 is drawn again.
+		expect((await renderFarmPyramid(farm.id))!.map((s) => s.dataset).sort()).toEqual(['c2024-2025', 's2025']);
+		const after = await setIds();
+		expect(after.get('s2024')).toBe(before.get('s2024'));
+		expect(after.get('s2025')).not.toBe(before.get('s2025'));
+		clearTileCache(); // the live tile drawn meanwhile is still right, and the LRU would answer first
+		const again = await cellsTile(manager, season(2025), z, x, y);
+		expect(again.etag.startsWith('"p-')).toBe(true);
+		// The older version's sets are gone.
+		const [{ n }] = await db.execute<{ n: number }>(sql`select count(*)::int as n from map_tile_sets where farm_id = ${farm.id}`);
+		expect(n).toBe(3);
+	});
 });

@@ -5,3 +5,4 @@ export * from './audit';
 export * from './catalogue';
 export * from './uploads';
 export * from './results';
+export * from './map-tiles';

@@ -5,17 +5,19 @@ import { db } from '$lib/server/db';
 import { farms } from '$lib/server/db/schema';
 import { setHotspotThreshold } from '$lib/server/farms';
 import * as fields from '$lib/server/fields';
+import * as mapData from '$lib/server/map/data';
 import type { Actions, PageServerLoad } from './$types';
 
-// The page loads only what frames the map; seasons, figures and cells come from the map's JSON
+// The page loads what frames the map and its seasons; figures and cells come from the map's JSON
 // and tile APIs in the browser, so changing the season or the threshold does not reload the page.
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireRole(event, 'map');
-	const [fieldMap, [farm]] = await Promise.all([
+	const [fieldMap, [farm], meta] = await Promise.all([
 		fields.featureCollection(actor),
-		db.select({ threshold: farms.hotspotThresholdPercent }).from(farms).where(eq(farms.id, actor.farm.id))
+		db.select({ threshold: farms.hotspotThresholdPercent }).from(farms).where(eq(farms.id, actor.farm.id)),
+		mapData.meta(actor)
 	]);
-	return { fieldMap, thresholdPercent: farm.threshold, canSetThreshold: may(actor.role, 'hotspots.set') };
+	return { fieldMap, meta, thresholdPercent: farm.threshold, canSetThreshold: may(actor.role, 'hotspots.set') };
 };
 
 export const actions: Actions = {

@@ -9,5 +9,7 @@ export const GET: RequestHandler = async (event) => {
 	requireUser(event, { api: true });
 	const tile = parseTileParams(event.params);
 	if (!tile) error(400, `No tile ${event.params.z}/${event.params.x}/${event.params.y}.`);
-	return tileResponse(await basemapTile(tile.z, tile.x, tile.y), event.request);
+	// The basemap is data shipped with the app: the browser may keep it for an hour, which also
+	// answers MapLibre's repeated requests for one overzoomed tile without a round trip.
+	return tileResponse(await basemapTile(tile.z, tile.x, tile.y), event.request, 'private, max-age=3600');
 };
