@@ -74,3 +74,20 @@ test('cell tiles: gzip MVT with an ETag for the manager, 204 for a landlord outs
 		expect((await other.get(path)).status(), path).toBe(404);
 	}
 });
+
+test("the worker pre-renders the farm's seasons: tiles at the saved threshold come from the stored pyramid, previews are drawn live", async ({ page }) => {
+	test.setTimeout(180_000);
+	const manager = await as(page, people.manager);
+	const [longHill] = (await fieldsOf(manager)).filter((f) => f.properties.name === 'Long Hill');
+	const path = `/api/farms/tallowgrass/tiles/cells/${tileOver(longHill, 13)}.pbf`;
+	// The worker draws the demo farm's pyramid in the background after the server starts.
+	await expect
+		.poll(async () => (await manager.get(`${path}?season=2024`)).headers().etag ?? '', { timeout: 150_000, intervals: [2000] })
+		.toMatch(/^"p-/);
+	const stored = await manager.get(`${path}?season=2024`);
+	expect(stored.status()).toBe(200);
+	expect(stored.headers()['content-encoding']).toBe('gzip');
+	const preview = await manager.get(`${path}?season=2024&threshold=35`);
+	expect(preview.status()).toBe(200);
+	expect(preview.headers().etag).not.toMatch(/^"p-/);
+});
