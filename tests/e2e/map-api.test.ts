@@ -1,6 +1,8 @@
 // The map's API and tiles through HTTP: scoping by role and farm, gzip, ETag and 304, 204 when empty.
 import { expect, test, type APIRequestContext, type Page } from '@playwright/test';
 import { tilesForBbox, type Bbox } from '../../src/lib/geo/tiles';
+import { unzipSync } from 'fflate';
+import * as shapefile from 'shapefile';
 import { people, signIn } from './helpers';
 
 type FieldFeature = { properties: { id: string; name: string }; geometry: { type: 'Polygon'; coordinates: number[][][] } | { type: 'MultiPolygon'; coordinates: number[][][][] } };
@@ -90,4 +92,31 @@ test("the worker pre-renders the farm's seasons: tiles at the saved threshold co
 	const preview = await manager.get(`${path}?season=2024&threshold=35`);
 	expect(preview.status()).toBe(200);
 	expect(preview.headers().etag).not.toMatch(/^"p-/);
+});
+
+test('exports: hotspots as a shapefile agree with the map figures; a landlord gets granted fields only; another farm gets nothing', async ({ page }) => {
+	const manager = await as(page, people.manager);
+	const summary = await (await manager.get('/api/farms/tallowgrass/map/summary?season=2025')).json();
+	const shp = await manager.get('/api/farms/tallowgrass/exports/hotspots?season=2025&format=shp');
+	expect(shp.status()).toBe(200);
+	expect(shp.headers()['content-disposition']).toBe('attachment; filename="tallowgrass-2025-hotspots-shapefile.zip"');
+	const files = unzipSync(new Uint8Array(await shp.body()));
+	const back = await shapefile.read(files['tallowgrass-2025-hotspots.shp'].slice().buffer, files['tallowgrass-2025-hotspots.dbf'].slice().buffer, { encoding: 'utf-8' });
+	expect(back.features.length).toBe(summary.hotspots);
+	// Hotspot area: the sum of the cells' areas inside the field, as the map's summary counts it.
+	const area = back.features.reduce((s, f) => s + Number(f.properties!.area_m2), 0);
+	// Each area is written to the hundredth of a m²: the sum may differ by half of that per cell.
+	expect(Math.abs(area - summary.hotspotAreaM2)).toBeLessThanOrEqual(0.005 * back.features.length);
+
+	const csv = await manager.get('/api/farms/tallowgrass/exports/cells?compare=2025,2026&format=csv');
+	const text = await csv.text();
+	expect(text.split('\r\n')[0]).toBe('field,field_id,col,row,season,area_m2,cov_m2,spr_m2,share_pct,vol_l,cover_fr,hotspot,status,centre_lng_deg,centre_lat_deg');
+	expect(text.endsWith('\r\n')).toBe(true);
+
+	const landlord = await as(page, people.landlord);
+	const granted = (await fieldsOf(landlord)).map((f) => f.properties.id).sort();
+	const geo = await (await landlord.get('/api/farms/tallowgrass/exports/cells?season=2025&format=geojson')).json();
+	expect([...new Set(geo.features.map((f: { properties: { field_id: string } }) => f.properties.field_id))].sort()).toEqual(granted);
+	expect((await landlord.get('/api/farms/brennan-creek/exports/cells?season=2026&format=csv')).status()).toBe(404);
+	expect((await landlord.get('/api/farms/tallowgrass/exports/cells?season=2025&format=xls')).status()).toBe(400);
 });

@@ -227,3 +227,19 @@ test('phone: the map fills the screen and the sheet opens and closes', async ({ 
 	await toggle.click();
 	await expect(toggle).toHaveAttribute('aria-expanded', 'false');
 });
+
+test("the panel's downloads give the season's hotspots as CSV", async ({ page }) => {
+	await page.setViewportSize(viewports.desktop);
+	await openMap(page, people.agronomist);
+	await page.getByTestId('map-exports').locator('summary').click();
+	const row = page.getByTestId('map-exports').getByRole('row', { name: /^Hotspots/ });
+	const [download] = await Promise.all([page.waitForEvent('download'), row.getByRole('link', { name: 'CSV' }).click()]);
+	expect(download.suggestedFilename()).toBe('tallowgrass-2026-hotspots.csv');
+	const text = readFileSync(await download.path(), 'utf8');
+	const lines = text.trimEnd().split('\r\n');
+	expect(lines.length).toBeGreaterThan(10);
+	// Every row a hotspot.
+	const hotspotColumn = lines[0].split(',').indexOf('hotspot');
+	expect(lines.slice(1).every((l) => l.split(',').at(hotspotColumn - lines[0].split(',').length) === '1')).toBe(true);
+	await page.getByTestId('map-exports').screenshot({ path: 'tests/screenshots/map-exports-desktop.png' });
+});

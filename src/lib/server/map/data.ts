@@ -130,31 +130,25 @@ function cellsSql(actor: Actor, d: Dataset, regions: CellRegion[]): SQL {
 	const cover = sql`least(r.covered_m_2 / nullif(r.area_m_2, 0), 1)`;
 	if (d.kind !== 'compare') {
 		return sql`select r.field_id, r.col, r.row, max(r.area_m_2) as area, sum(r.covered_m_2) as cov, sum(r.sprayed_m_2) as spr,
-			coalesce(max(${cover}), 0) as cover, count(*)::int as apps ${from}`;
+			sum(r.volume_l) as vol, coalesce(max(${cover}), 0) as cover, count(*)::int as apps ${from}`;
 	}
 	const e = sql`a.season = ${d.earlier}`;
 	const l = sql`a.season = ${d.later}`;
 	return sql`select r.field_id, r.col, r.row, max(r.area_m_2) as area,
 		coalesce(sum(r.covered_m_2) filter (where ${e}), 0) as cov_e, coalesce(sum(r.sprayed_m_2) filter (where ${e}), 0) as spr_e,
-		coalesce(max(${cover}) filter (where ${e}), 0) as cover_e,
+		coalesce(max(${cover}) filter (where ${e}), 0) as cover_e, coalesce(sum(r.volume_l) filter (where ${e}), 0) as vol_e,
 		coalesce(sum(r.covered_m_2) filter (where ${l}), 0) as cov_l, coalesce(sum(r.sprayed_m_2) filter (where ${l}), 0) as spr_l,
-		coalesce(max(${cover}) filter (where ${l}), 0) as cover_l ${from}`;
+		coalesce(max(${cover}) filter (where ${l}), 0) as cover_l, coalesce(sum(r.volume_l) filter (where ${l}), 0) as vol_l ${from}`;
 }
 
-export type CellRow = { fieldId: string; col: number; row: number; areaM2: number; coveredM2: number; sprayedM2: number; cover: number };
-export type CompareCellRow = {
-	fieldId: string;
-	col: number;
-	row: number;
-	areaM2: number;
-	earlier: { coveredM2: number; sprayedM2: number; cover: number };
-	later: { coveredM2: number; sprayedM2: number; cover: number };
-};
+export type CellRow = { fieldId: string; col: number; row: number; areaM2: number; coveredM2: number; sprayedM2: number; volumeL: number; cover: number };
+type Side = { coveredM2: number; sprayedM2: number; volumeL: number; cover: number };
+export type CompareCellRow = { fieldId: string; col: number; row: number; areaM2: number; earlier: Side; later: Side };
 
-type RawCell = { field_id: string; col: number; row: number; area: number; cov: number; spr: number; cover: number };
+type RawCell = { field_id: string; col: number; row: number; area: number; cov: number; spr: number; vol: number; cover: number };
 type RawCompare = {
 	field_id: string; col: number; row: number; area: number;
-	cov_e: number; spr_e: number; cover_e: number; cov_l: number; spr_l: number; cover_l: number;
+	cov_e: number; spr_e: number; vol_e: number; cover_e: number; cov_l: number; spr_l: number; vol_l: number; cover_l: number;
 };
 
 /**
@@ -175,17 +169,17 @@ export async function cellRows(actor: Actor, d: Dataset, regions: CellRegion[], 
 			s === 1
 				? cells
 				: sql`select field_id, (col / ${s}::int) * ${s}::int as col, (row / ${s}::int) * ${s}::int as row, sum(area) as area,
-					sum(cov) as cov, sum(spr) as spr, sum(area * cover) / nullif(sum(area), 0) as cover
+					sum(cov) as cov, sum(spr) as spr, sum(vol) as vol, sum(area * cover) / nullif(sum(area), 0) as cover
 					from (${cells}) c group by 1, 2, 3`;
 		const rows = await db.execute<RawCell>(query);
-		return rows.map((r) => ({ fieldId: r.field_id, col: r.col, row: r.row, areaM2: r.area, coveredM2: r.cov, sprayedM2: r.spr, cover: r.cover ?? 0 }));
+		return rows.map((r) => ({ fieldId: r.field_id, col: r.col, row: r.row, areaM2: r.area, coveredM2: r.cov, sprayedM2: r.spr, volumeL: r.vol, cover: r.cover ?? 0 }));
 	}
 	const query =
 		s === 1
 			? cells
 			: sql`select field_id, (col / ${s}::int) * ${s}::int as col, (row / ${s}::int) * ${s}::int as row, sum(area) as area,
-				sum(cov_e) as cov_e, sum(spr_e) as spr_e, sum(area * cover_e) / nullif(sum(area), 0) as cover_e,
-				sum(cov_l) as cov_l, sum(spr_l) as spr_l, sum(area * cover_l) / nullif(sum(area), 0) as cover_l
+				sum(cov_e) as cov_e, sum(spr_e) as spr_e, sum(vol_e) as vol_e, sum(area * cover_e) / nullif(sum(area), 0) as cover_e,
+				sum(cov_l) as cov_l, sum(spr_l) as spr_l, sum(vol_l) as vol_l, sum(area * cover_l) / nullif(sum(area), 0) as cover_l
 				from (${cells}) c group by 1, 2, 3`;
 	const rows = await db.execute<RawCompare>(query);
 	return rows.map((r) => ({
@@ -193,8 +187,8 @@ export async function cellRows(actor: Actor, d: Dataset, regions: CellRegion[], 
 		col: r.col,
 		row: r.row,
 		areaM2: r.area,
-		earlier: { coveredM2: r.cov_e, sprayedM2: r.spr_e, cover: r.cover_e ?? 0 },
-		later: { coveredM2: r.cov_l, sprayedM2: r.spr_l, cover: r.cover_l ?? 0 }
+		earlier: { coveredM2: r.cov_e, sprayedM2: r.spr_e, volumeL: r.vol_e, cover: r.cover_e ?? 0 },
+		later: { coveredM2: r.cov_l, sprayedM2: r.spr_l, volumeL: r.vol_l, cover: r.cover_l ?? 0 }
 	}));
 }
 

@@ -8,10 +8,10 @@ import { eq, sql } from 'drizzle-orm';
 import { PbfReader } from 'pbf';
 import { VectorTile } from '@mapbox/vector-tile';
 import { db } from '$lib/server/db';
-import { applications, cellResults, farms, fields, mapTileSets, tankMixes } from '$lib/server/db/schema';
+import { farms, mapTileSets, tankMixes } from '$lib/server/db/schema';
 import type { Actor } from '$lib/server/auth/guard';
 import { grant, join, makeFarm, makeUser } from '$lib/server/testing/fixtures';
-import { fieldGeometryColumns } from '$lib/geo/field-geometry';
+import { addApplication as addApplicationTo, addField as addFieldTo, square, type FieldRow } from '$lib/server/testing/results-fixtures';
 import { cellCornersLngLat, gridBbox as mapBbox, tilesForBbox } from '$lib/geo/tiles';
 import type { GridSpec } from '$lib/compute/types';
 import { cellHistory, cellRows, farmVersionSql, mapContext, meta, summary, type CellRegion } from './data';
@@ -22,7 +22,7 @@ import { seededRandom } from '$lib/compute/seeded-random';
 import { basemapTile } from './basemap';
 import { LruCache } from './cache';
 
-type Row = { id: string; grid: GridSpec };
+type Row = FieldRow;
 let farm: Awaited<ReturnType<typeof makeFarm>>;
 let manager: Actor;
 let landlord: Actor;
@@ -30,26 +30,9 @@ let fieldA: Row;
 let fieldB: Row;
 const apps: Record<string, string> = {};
 
-const square = (w: number, s: number, e: number, n: number) => ({ type: 'Polygon' as const, coordinates: [[[w, s], [e, s], [e, n], [w, n], [w, s]]] });
-
-async function addField(name: string, boundary: ReturnType<typeof square>): Promise<Row> {
-	const [f] = await db.insert(fields).values({ farmId: farm.id, name, ...fieldGeometryColumns(boundary) }).returning();
-	return { id: f.id, grid: { proj: f.gridProj, epsg: f.gridEpsg, cellSizeM: f.gridCellM, originX: f.gridOriginX, originY: f.gridOriginY, cols: f.gridCols, rows: f.gridRows } };
-}
-
+const addField = (name: string, boundary: ReturnType<typeof square>) => addFieldTo(farm.id, name, boundary);
 async function addApplication(key: string, fieldId: string, mixId: string, day: string, cells: [number, number, number, number, number][]) {
-	const [a] = await db
-		.insert(applications)
-		.values({
-			farmId: farm.id, fieldId, tankMixId: mixId, day, season: Number(day.slice(0, 4)),
-			startedAt: new Date(`${day}T08:00:00Z`), endedAt: new Date(`${day}T09:00:00Z`), fixCount: 10,
-			coveredM2: cells.reduce((s, c) => s + c[3], 0), sprayedM2: cells.reduce((s, c) => s + c[4], 0), volumeL: 1
-		})
-		.returning();
-	apps[key] = a.id;
-	await db.insert(cellResults).values(
-		cells.map(([col, row, areaM2, coveredM2, sprayedM2]) => ({ applicationId: a.id, fieldId, col, row, areaM2, coveredM2, sprayedM2, volumeL: sprayedM2 * 1e-2 }))
-	);
+	apps[key] = await addApplicationTo(farm.id, fieldId, mixId, day, cells);
 }
 
 const season = (s: number, threshold: number | null = null): MapQuery => ({ dataset: { kind: 'season', season: s }, thresholdPercent: threshold });
