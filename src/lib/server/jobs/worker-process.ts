@@ -9,9 +9,12 @@ let stopping = false;
 let restarts = 0;
 
 function command(): { script: string; execArgv: string[] } | null {
-	// Built app: build/worker.js beside build/index.js. Dev server: the TypeScript source via tsx.
-	const built = join(dirname(process.argv[1] ?? ''), 'worker.js');
-	if (existsSync(built)) return { script: built, execArgv: [] };
+	// Built app: build/worker.js beside build/index.js; `node build` names the folder, `node
+	// build/index.js` the file. Dev server: the TypeScript source via tsx.
+	const entry = process.argv[1] ?? '';
+	for (const built of [join(entry, 'worker.js'), join(dirname(entry), 'worker.js')]) {
+		if (existsSync(built)) return { script: built, execArgv: [] };
+	}
 	const source = join(process.cwd(), 'src/lib/server/jobs/worker-main.ts');
 	if (existsSync(source)) return { script: source, execArgv: ['--import', 'tsx'] };
 	return null;
