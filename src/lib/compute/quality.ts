@@ -200,7 +200,14 @@ export function assessQuality(
 	const summary: QualitySummary = {
 		v: 1,
 		sprayingDistanceM,
-		limits,
+		// Only the limits: callers may pass a whole machine row.
+		limits: {
+			maxSpeedMPerS: limits.maxSpeedMPerS,
+			targetHeightM: limits.targetHeightM,
+			heightToleranceM: limits.heightToleranceM,
+			pressureMinPa: limits.pressureMinPa,
+			pressureMaxPa: limits.pressureMaxPa
+		},
 		speed: { ...speed.figures(hasSpeedLimit, true), source: loggedSpeeds >= positionSpeeds && loggedSpeeds > 0 ? 'logged' : 'positions' },
 		height: heights.figures(hasHeightLimit, !!height),
 		pressure: pressures.figures(hasPressureLimit, !!pressure),
