@@ -102,7 +102,8 @@ export function recordsCsv(records: CsvRecord[], system: UnitSystem): string {
 			round(fromSi('volumePerArea', f.carrierRateLPerM2, u.carrierRate), 3),
 			round(fromSi('volume', f.volumeL, liquid), 2),
 			p?.name ?? '',
-			p ? (i.registrationNumbers[p.productId] ?? '') : '',
+			// Until the applicator records one, the catalogue's number stands in.
+			p ? (i.registrationNumbers[p.productId] || p.catalogueRegistration || '') : '',
 			p?.unit === 'L' ? round(fromSi('volumePerArea', p.ratePerM2, u.liquidRate), 4) : '',
 			p?.unit === 'kg' ? round(fromSi('massPerArea', p.ratePerM2, u.dryRate), 4) : '',
 			p?.unit === 'L' ? round(fromSi('volume', p.appliedUnits, liquid), 3) : '',
