@@ -23,9 +23,15 @@ const certification = `WA-55012 (test ${run})`;
 let field = '';
 let day = '';
 
+/** Opens a page and waits until it answers to typing (the selects submit on change, the calculator computes). */
+async function goto(page: Page, path: string) {
+	await page.goto(path);
+	await page.locator('html[data-hydrated="true"]').waitFor();
+}
+
 /** The records list filtered as people do it: one select after the other, each reloading the list. */
 async function openRecordsOf(page: Page, filters: { season: string; field: string }) {
-	await page.goto('/tallowgrass/records');
+	await goto(page, '/tallowgrass/records');
 	await page.getByLabel('Season').selectOption(filters.season);
 	await expect(page).toHaveURL(new RegExp(`season=${filters.season}`));
 	await page.getByLabel('Field').selectOption({ label: filters.field });
@@ -36,7 +42,7 @@ test('an operator completes and signs a record on a phone in under two minutes; 
 	await page.setViewportSize(viewports.phone);
 	await signIn(page, people.operator);
 	const started = Date.now();
-	await page.goto(`/tallowgrass/records?season=${season}&status=todo`);
+	await goto(page, `/tallowgrass/records?season=${season}&status=todo`);
 	await expect(page.getByLabel('State')).toHaveValue('todo');
 	await shot(page, 'records-list-operator-phone');
 	const spring = page.getByTestId('record-row').filter({ hasText: /2025-04-1\d/ }).filter({ hasText: new RegExp(samsSpringFields.join('|')) }).first();
@@ -133,7 +139,7 @@ test('an operator reads, but cannot complete, a record of another operator’s u
 test('a manager filters the records, exports CSV (parsed back) and opens the season’s print view', async ({ page }) => {
 	await page.setViewportSize(viewports.desktop);
 	await signIn(page, people.manager);
-	await page.goto('/tallowgrass/records');
+	await goto(page, '/tallowgrass/records');
 	// The newest season by default; ten spring applications plus the June pass over four fields.
 	await expect(page.getByLabel('Season')).toHaveValue('2026');
 	await page.getByLabel('Season').selectOption(season);
@@ -238,7 +244,7 @@ test('a record’s flagged track opens on the map, and the layer can be switched
 test('calibration: the worked examples on the page, US customary and metric', async ({ page }) => {
 	await page.setViewportSize(viewports.phone);
 	await signIn(page, people.agronomist); // works in US units
-	await page.goto('/tallowgrass/calibration');
+	await goto(page, '/tallowgrass/calibration');
 	await expect(page.getByRole('button', { name: 'US customary' })).toHaveAttribute('aria-pressed', 'true');
 	await page.getByLabel('Machine').selectOption('');
 	// UF/IFAS WG013: 0.4 gal/min at 6 mph and 20 in gives 19.8 gal/ac.
@@ -272,7 +278,7 @@ test('machine quality limits are set in the catalogue and shown with the machine
 	const name = `Limits boom ${Date.now().toString(36).slice(-5)} (test)`;
 	await page.setViewportSize(viewports.desktop);
 	await signIn(page, people.manager);
-	await page.goto('/tallowgrass/catalogue');
+	await goto(page, '/tallowgrass/catalogue');
 	await expect(page.locator('tr', { has: page.getByRole('rowheader', { name: 'Spot sprayer 36.6 m' }) })).toContainText('≤ 20 km/h · 50 ± 10 cm high · 2–4 bar');
 	await page.getByText('Add a machine').click();
 	const add = page.locator('details', { hasText: 'Add a machine' });
