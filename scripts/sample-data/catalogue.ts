@@ -21,7 +21,21 @@ export const SAM = 'sam@tallowgrass.example';
 export const NOOR = 'noor@tallowgrass.example';
 export const TOM = 'tom@brennancreek.example';
 
-export type Machine = Boom & { name: string; nozzleFlowLPerS: number; referencePressurePa: number };
+export type Machine = Boom & {
+	name: string;
+	nozzleFlowLPerS: number;
+	referencePressurePa: number;
+	/** Application-quality limits (common practice, no source): the demo logs carry speed only,
+	 * so boom height and pressure read "not in the log" on the demo's records. */
+	maxSpeedMPerS: number;
+	targetHeightM: number;
+	heightToleranceM: number;
+	pressureMinPa: number;
+	pressureMaxPa: number;
+};
+
+/** 20 km/h, a boom 50 ± 10 cm above the target, 2 to 4 bar (common practice, no source). */
+const QUALITY_LIMITS = { maxSpeedMPerS: 20 / 3.6, targetHeightM: 0.5, heightToleranceM: 0.1, pressureMinPa: 2e5, pressureMaxPa: 4e5 };
 
 /** 120 ft boom, 144 nozzles at 10 in, 4 nozzles per sensor (common practice, no source);
  * 1.5 L/min per nozzle at 3 bar. */
@@ -32,7 +46,8 @@ export const MAIN_SPRAYER: Machine = {
 	nozzleSpacingM: 0.254,
 	nozzlesPerSensor: 4,
 	nozzleFlowLPerS: 1.5 / 60,
-	referencePressurePa: 3e5
+	referencePressurePa: 3e5,
+	...QUALITY_LIMITS
 };
 
 /** An older, narrower machine kept for small fields: 90 ft, 108 nozzles at 10 in. */
@@ -43,7 +58,8 @@ export const SMALL_SPRAYER: Machine = {
 	nozzleSpacingM: 0.254,
 	nozzlesPerSensor: 4,
 	nozzleFlowLPerS: 1.2 / 60,
-	referencePressurePa: 3e5
+	referencePressurePa: 3e5,
+	...QUALITY_LIMITS
 };
 
 export type Product = { name: string; registrationNumber: string; unit: 'L' | 'kg'; pricePerUnit: number };

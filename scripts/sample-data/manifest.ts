@@ -16,7 +16,12 @@ function machineEntry(m: Machine) {
 		nozzleSpacingM: m.nozzleSpacingM,
 		nozzlesPerSensor: m.nozzlesPerSensor,
 		nozzleFlowLPerS: m.nozzleFlowLPerS,
-		referencePressurePa: m.referencePressurePa
+		referencePressurePa: m.referencePressurePa,
+		maxSpeedMPerS: m.maxSpeedMPerS,
+		targetHeightM: m.targetHeightM,
+		heightToleranceM: m.heightToleranceM,
+		pressureMinPa: m.pressureMinPa,
+		pressureMaxPa: m.pressureMaxPa
 	};
 }
 

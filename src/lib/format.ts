@@ -1,7 +1,7 @@
 // Values as people read them, in their unit system. Input is always SI (m, m2, L, kg, L/m2,
 // kg/m2, L/s, m/s, Pa); conversions come from $lib/compute/units (NIST SP 811). One fixed
 // locale, so a page rendered on the server reads the same after hydration in any browser.
-import { fromSi, toSi, type Quantity, type UnitOf } from '$lib/compute/units';
+import { celsiusToFahrenheit, fromSi, toSi, type Quantity, type TemperatureUnit, type UnitOf } from '$lib/compute/units';
 
 export type UnitSystem = 'metric' | 'us';
 export type ProductUnit = 'L' | 'kg';
@@ -21,7 +21,9 @@ export const unitsFor = {
 		dryRate: 'kg/ha',
 		flow: 'L/min',
 		speed: 'km/h',
-		pressure: 'bar'
+		pressure: 'bar',
+		height: 'cm',
+		temperature: '°C'
 	},
 	us: {
 		area: 'ac',
@@ -34,7 +36,9 @@ export const unitsFor = {
 		dryRate: 'lb/ac',
 		flow: 'gal/min',
 		speed: 'mph',
-		pressure: 'psi'
+		pressure: 'psi',
+		height: 'in',
+		temperature: '°F'
 	}
 } as const satisfies Record<
 	UnitSystem,
@@ -50,6 +54,8 @@ export const unitsFor = {
 		flow: UnitOf<'flow'>;
 		speed: UnitOf<'speed'>;
 		pressure: UnitOf<'pressure'>;
+		height: UnitOf<'length'>;
+		temperature: TemperatureUnit;
 	}
 >;
 
@@ -93,6 +99,15 @@ export const formatCarrierRate = (lPerM2: number | null | undefined, system: Uni
 export const formatFlow = (lPerS: number | null | undefined, system: UnitSystem) => formatIn('flow', lPerS, unitsFor[system].flow);
 export const formatSpeed = (mPerS: number | null | undefined, system: UnitSystem) => formatIn('speed', mPerS, unitsFor[system].speed, 3);
 export const formatPressure = (pa: number | null | undefined, system: UnitSystem) => formatIn('pressure', pa, unitsFor[system].pressure, 3);
+
+export const formatHeight = (m: number | null | undefined, system: UnitSystem) => formatIn('length', m, unitsFor[system].height, 3);
+
+/** An air temperature (°C) in the user's unit: "18 °C", "64.4 °F". */
+export function formatTemperature(celsius: number | null | undefined, system: UnitSystem): string {
+	if (celsius === null || celsius === undefined || !Number.isFinite(celsius)) return '–';
+	const unit = unitsFor[system].temperature;
+	return `${formatNumber(unit === '°F' ? celsiusToFahrenheit(celsius) : celsius, 3, 1)} ${unit}`;
+}
 
 /** An amount of product (L or kg) as L or gal, kg or lb. */
 export function formatAmount(amount: number | null | undefined, unit: ProductUnit, system: UnitSystem): string {

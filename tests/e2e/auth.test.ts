@@ -2,9 +2,9 @@ import { expect, test } from '@playwright/test';
 import { password, people, signIn } from './helpers';
 
 const navFor = {
-	manager: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Savings', 'Catalogue', 'Team', 'Season summaries'],
-	agronomist: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Catalogue'],
-	operator: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Catalogue'],
+	manager: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Savings', 'Catalogue', 'Team', 'Season summaries'],
+	agronomist: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Catalogue'],
+	operator: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Catalogue'],
 	landlord: ['Season summaries']
 };
 

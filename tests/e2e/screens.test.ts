@@ -4,9 +4,9 @@ import { expect, test } from '@playwright/test';
 import { people, signIn } from './helpers';
 
 const pages = {
-	manager: ['', '/map', '/fields', '/uploads', '/records', '/savings', '/catalogue', '/team', '/summaries'],
-	agronomist: ['', '/catalogue'],
-	operator: ['', '/uploads', '/catalogue'],
+	manager: ['', '/map', '/fields', '/uploads', '/records', '/calibration', '/savings', '/catalogue', '/team', '/summaries'],
+	agronomist: ['', '/catalogue', '/records', '/calibration'],
+	operator: ['', '/uploads', '/records', '/calibration', '/catalogue'],
 	landlord: ['/summaries']
 } as const;
 const viewports = { desktop: { width: 1280, height: 800 }, phone: { width: 390, height: 844 } };

@@ -12,7 +12,7 @@ const EARTH_RADIUS_M = 6_371_008.8;
 const DEG = Math.PI / 180;
 
 /** Ground distance for nearby points (equirectangular; fine for the metres between fixes). */
-function distanceM(lngA: number, latA: number, lngB: number, latB: number): number {
+export function distanceM(lngA: number, latA: number, lngB: number, latB: number): number {
 	const x = (lngB - lngA) * DEG * Math.cos(((latA + latB) / 2) * DEG);
 	const y = (latB - latA) * DEG;
 	return Math.hypot(x, y) * EARTH_RADIUS_M;
@@ -154,5 +154,7 @@ export function selectFixes(input: FixColumns, index: Uint32Array): FixColumns {
 	if (input.rateLPerM2) out.rateLPerM2 = pick32(input.rateLPerM2);
 	if (input.flowLPerS) out.flowLPerS = pick32(input.flowLPerS);
 	if (input.speedMPerS) out.speedMPerS = pick32(input.speedMPerS);
+	if (input.pressurePa) out.pressurePa = pick32(input.pressurePa);
+	if (input.boomHeightM) out.boomHeightM = pick32(input.boomHeightM);
 	return out;
 }

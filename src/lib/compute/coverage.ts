@@ -56,7 +56,9 @@ export type CoverageResult = { totals: CoverageTotals; cells: CellFigures[] };
 
 type Window = { col0: number; row0: number; cols: number; rows: number };
 
-const DEFAULTS = { pixelM: 0.1, maxGapS: 3, maxSpeedMPerS: 60 / 3.6, maxRasterBytes: 192 * 2 ** 20 };
+/** An interval longer than this, or faster, is not drawn: a gap in the log (DESIGN.md, footprints). */
+export const DRAW_LIMITS = { maxGapS: 3, maxSpeedMPerS: 60 / 3.6 } as const;
+const DEFAULTS = { pixelM: 0.1, ...DRAW_LIMITS, maxRasterBytes: 192 * 2 ** 20 };
 
 /**
  * Coverage of a field: totals and per-cell figures for every grid cell that the region touches.

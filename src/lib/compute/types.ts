@@ -28,6 +28,10 @@ export type FixColumns = {
 	flowLPerS?: Float32Array;
 	/** Optional: ground speed, m/s. NaN where missing. */
 	speedMPerS?: Float32Array;
+	/** Optional: boom (spray line) pressure, Pa. NaN where missing. Read for application quality. */
+	pressurePa?: Float32Array;
+	/** Optional: boom or sensor height above the target, m. NaN where missing. */
+	boomHeightM?: Float32Array;
 	/** 1-based row (or feature) number in the source file, for messages. */
 	sourceRow: Uint32Array;
 	/** Optional: 1 where the interval from this fix to the next belongs to this set of fixes, 0

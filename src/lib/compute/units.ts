@@ -94,6 +94,14 @@ export function convert<Q extends Quantity>(quantity: Q, value: number, from: Un
 	return (value * factor(quantity, from)) / factor(quantity, to);
 }
 
+/**
+ * Temperature is affine, not a factor: t/°C = (t/°F - 32)/1.8 (NIST SP 811 (2008), B.9, exact).
+ * @example fahrenheitToCelsius(68) // 20
+ */
+export const fahrenheitToCelsius = (f: number) => (f - 32) / 1.8;
+export const celsiusToFahrenheit = (c: number) => c * 1.8 + 32;
+export type TemperatureUnit = '°C' | '°F';
+
 // Named shortcuts for the conversions the trade does every day.
 export const lPerHaToLPerM2 = (lPerHa: number) => lPerHa / M2_PER_HA;
 export const lPerM2ToLPerHa = (lPerM2: number) => lPerM2 * M2_PER_HA;

@@ -251,7 +251,7 @@ describe('readLog on CSV', () => {
 		expect(f.speedMPerS![0]).toBeCloseTo(4.4704, 5);
 		expect(f.rateLPerM2![0]).toBeCloseTo((15 * 3.785411784) / 4046.8564224, 9);
 		expect(f.flowLPerS![0]).toBeCloseTo((20 * US_GALLON_L) / 60, 5);
-		expect(r.extras.pressurePa![0]).toBeCloseTo(40 * 6894.757, 0);
+		expect(f.pressurePa![0]).toBeCloseTo(40 * 6894.757, 0);
 		expect(f.master![0]).toBe(0);
 		expect(ACRE_M2).toBe(4046.8564224);
 	});

@@ -9,9 +9,10 @@ import { flowToLPerS, lengthToM, pressureToPa, rateToLPerM2, speedToMPerS } from
 /** Columns the engine's FixColumns has no slot for, kept for later use (display, checks). */
 export type FixExtras = {
 	headingDeg?: Float32Array;
-	pressurePa?: Float32Array;
-	boomHeightM?: Float32Array;
 };
+
+/** Optional columns that travel with the fixes (cleaned, split, packed, checked for quality). */
+const FIX_COLUMNS = new Set(['rateLPerM2', 'flowLPerS', 'speedMPerS', 'pressurePa', 'boomHeightM']);
 
 export type ReadLogResult = {
 	/** Null when any row was fatally wrong: an import succeeds whole or not at all. */
@@ -435,7 +436,7 @@ export class RowPlan {
 		if (this.master) fixes.master = this.master.final(n);
 		for (const o of this.optional) {
 			const arr = o.out.final(n);
-			if (o.key === 'rateLPerM2' || o.key === 'flowLPerS' || o.key === 'speedMPerS') fixes[o.key] = arr;
+			if (FIX_COLUMNS.has(o.key)) fixes[o.key as 'rateLPerM2'] = arr;
 			else extras[o.key as keyof FixExtras] = arr;
 		}
 		return { fixes, extras, warnings, errors };

@@ -20,6 +20,12 @@ export type MachineInput = {
 	/** Nominal flow of one nozzle at the reference pressure, L/s. */
 	nozzleFlowLPerS: number | null;
 	referencePressurePa: number | null;
+	/** Application-quality limits; absent or null = not checked. */
+	maxSpeedMPerS?: number | null;
+	targetHeightM?: number | null;
+	heightToleranceM?: number | null;
+	pressureMinPa?: number | null;
+	pressureMaxPa?: number | null;
 };
 
 export type ProductInput = {
@@ -87,6 +93,17 @@ function assertMachine(input: MachineInput) {
 	assertFinite('nozzlesPerSensor', input.nozzlesPerSensor, { positive: true, integer: true });
 	assertFinite('nozzleFlowLPerS', input.nozzleFlowLPerS, { positive: true });
 	assertFinite('referencePressurePa', input.referencePressurePa, { positive: true });
+	assertFinite('maxSpeedMPerS', input.maxSpeedMPerS ?? null, { positive: true });
+	assertFinite('targetHeightM', input.targetHeightM ?? null, { positive: true });
+	assertFinite('heightToleranceM', input.heightToleranceM ?? null, { positive: true });
+	assertFinite('pressureMinPa', input.pressureMinPa ?? null, { positive: true });
+	assertFinite('pressureMaxPa', input.pressureMaxPa ?? null, { positive: true });
+	if ((input.targetHeightM ?? null) === null !== ((input.heightToleranceM ?? null) === null)) {
+		throw new Error('targetHeightM and heightToleranceM go together');
+	}
+	if (input.pressureMinPa && input.pressureMaxPa && input.pressureMinPa >= input.pressureMaxPa) {
+		throw new Error('pressureMinPa must be below pressureMaxPa');
+	}
 }
 
 function assertProduct(input: ProductInput) {
@@ -154,6 +171,11 @@ const machineColumns = {
 	nozzlesPerSensor: machines.nozzlesPerSensor,
 	nozzleFlowLPerS: machines.nozzleFlowLPerS,
 	referencePressurePa: machines.referencePressurePa,
+	maxSpeedMPerS: machines.maxSpeedMPerS,
+	targetHeightM: machines.targetHeightM,
+	heightToleranceM: machines.heightToleranceM,
+	pressureMinPa: machines.pressureMinPa,
+	pressureMaxPa: machines.pressureMaxPa,
 	createdAt: machines.createdAt
 };
 
@@ -178,7 +200,12 @@ function machineValues(input: MachineInput) {
 		nozzleSpacingM: input.nozzleSpacingM,
 		nozzlesPerSensor: input.nozzlesPerSensor,
 		nozzleFlowLPerS: input.nozzleFlowLPerS,
-		referencePressurePa: input.referencePressurePa
+		referencePressurePa: input.referencePressurePa,
+		maxSpeedMPerS: input.maxSpeedMPerS ?? null,
+		targetHeightM: input.targetHeightM ?? null,
+		heightToleranceM: input.heightToleranceM ?? null,
+		pressureMinPa: input.pressureMinPa ?? null,
+		pressureMaxPa: input.pressureMaxPa ?? null
 	};
 }
 

@@ -22,7 +22,9 @@ export const colors = {
 	loam500: '#3f6f79',
 	loam700: '#27444b',
 	straw500: '#c9a047',
-	bark700: '#5b3518'
+	bark700: '#5b3518',
+	loam900: '#162a2f',
+	alert700: '#9a2e1c'
 };
 
 export function baseStyle(): StyleSpecification {

@@ -63,3 +63,16 @@ describe('the guard against the database', () => {
 		expect(await statusOf(requireRole(eventFor(person, { farm: b.slug }), 'team'))).toBe(403);
 	});
 });
+
+describe('records (issue 8)', () => {
+	test('managers, agronomists and operators see and sign records; landlords neither', () => {
+		for (const role of ['manager', 'agronomist', 'operator'] as const) {
+			expect(may(role, 'records.view')).toBe(true);
+			expect(may(role, 'records.sign')).toBe(true);
+			expect(mayOpen(role, 'calibration')).toBe(true);
+		}
+		expect(may('landlord', 'records.view')).toBe(false);
+		expect(may('landlord', 'records.sign')).toBe(false);
+		expect(mayOpen('landlord', 'calibration')).toBe(false);
+	});
+});

@@ -19,6 +19,7 @@ export const areas = {
 	fields: ['manager', 'agronomist', 'operator'],
 	uploads: ['manager', 'agronomist', 'operator'],
 	records: ['manager', 'agronomist', 'operator'],
+	calibration: ['manager', 'agronomist', 'operator'],
 	savings: ['manager'],
 	catalogue: ['manager', 'agronomist', 'operator'],
 	team: ['manager'],
@@ -34,7 +35,13 @@ export const abilities = {
 	'uploads.create': ['manager', 'operator'],
 	'uploads.delete': ['manager'],
 	'team.manage': ['manager'],
-	'hotspots.set': ['manager', 'agronomist']
+	'hotspots.set': ['manager', 'agronomist'],
+	// Records name applicators and their certification numbers: the farm's and the applicator's
+	// to share. Landlords get product amounts in their season summary instead; a manager can
+	// print a record for them.
+	'records.view': ['manager', 'agronomist', 'operator'],
+	// Operators only for applications from their own uploads (enforced in $lib/server/records).
+	'records.sign': ['manager', 'agronomist', 'operator']
 } as const satisfies Record<string, readonly Role[]>;
 export type Ability = keyof typeof abilities;
 

@@ -53,3 +53,15 @@ test('interval starts survive packing and joining; a part without them starts at
 	// Time order: a0 (100), b0 (100.1), a1 (100.2), b1 (100.3), a2, a3.
 	expect(Array.from(joined.isStart!)).toEqual([1, 1, 0, 1, 1, 0]);
 });
+
+test('pressure and boom height are packed; joined with a log without them they read NaN there', () => {
+	const a = { ...log(3, 100), pressurePa: Float32Array.from([3e5, 3.1e5, 2.9e5]), boomHeightM: Float32Array.from([0.5, 0.52, 0.61]) };
+	const back = unpackFixes(packFixes(a));
+	expect(Array.from(back.pressurePa!)).toEqual(Array.from(a.pressurePa));
+	expect(Array.from(back.boomHeightM!)).toEqual(Array.from(a.boomHeightM));
+	const joined = concatFixes([a, log(2, 100.1)]);
+	// Time order: a0, b0, a1, b1, a2.
+	expect(Array.from(joined.pressurePa!).map((v) => (Number.isNaN(v) ? 'NaN' : v))).toEqual([3e5, 'NaN', 3.1e5, 'NaN', 2.9e5]);
+	expect(joined.boomHeightM!.length).toBe(5);
+	expect(concatFixes([log(2, 1), log(2, 2)]).pressurePa).toBeUndefined();
+});

@@ -27,6 +27,8 @@ function columnsOf(f: FixColumns): [string, Column][] {
 	if (f.rateLPerM2) out.push(['rateLPerM2', f.rateLPerM2]);
 	if (f.flowLPerS) out.push(['flowLPerS', f.flowLPerS]);
 	if (f.speedMPerS) out.push(['speedMPerS', f.speedMPerS]);
+	if (f.pressurePa) out.push(['pressurePa', f.pressurePa]);
+	if (f.boomHeightM) out.push(['boomHeightM', f.boomHeightM]);
 	if (f.isStart) out.push(['isStart', f.isStart]);
 	return out;
 }
@@ -81,6 +83,8 @@ export function unpackFixes(packed: Buffer): FixColumns {
 			case 'rateLPerM2': out.rateLPerM2 = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
 			case 'flowLPerS': out.flowLPerS = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
 			case 'speedMPerS': out.speedMPerS = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
+			case 'pressurePa': out.pressurePa = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
+			case 'boomHeightM': out.boomHeightM = take((b, o, l) => new Float32Array(b, o, l), n, 4); break;
 			case 'isStart': out.isStart = take((b, o, l) => new Uint8Array(b, o, l), n, 1); break;
 			case 'spray': {
 				const s = header.spray;
@@ -125,6 +129,12 @@ export function concatFixes(parts: FixColumns[]): FixColumns {
 		for (let i = 0; i < total; i++) dst[i] = get(parts[owner[order[i]]])![local[order[i]]];
 		return dst;
 	};
+	// Measurements only checked for quality: a log without the column is missing there (NaN),
+	// so one log with pressure still gets checked beside one without.
+	const pickMeasured = (get: (p: FixColumns) => Float32Array | undefined) => {
+		if (!parts.some((p) => get(p))) return undefined;
+		return pick((p) => get(p) ?? new Float32Array(p.count).fill(NaN), (n) => new Float32Array(n)) as Float32Array;
+	};
 	let spray: SprayState;
 	const first = parts[0].spray;
 	if (first.kind === 'nozzles') {
@@ -154,7 +164,9 @@ export function concatFixes(parts: FixColumns[]): FixColumns {
 		master: pick((p) => p.master, (n) => new Uint8Array(n)) as Uint8Array | undefined,
 		rateLPerM2: pick((p) => p.rateLPerM2, (n) => new Float32Array(n)) as Float32Array | undefined,
 		flowLPerS: pick((p) => p.flowLPerS, (n) => new Float32Array(n)) as Float32Array | undefined,
-		speedMPerS: pick((p) => p.speedMPerS, (n) => new Float32Array(n)) as Float32Array | undefined,
+		speedMPerS: pickMeasured((p) => p.speedMPerS),
+		pressurePa: pickMeasured((p) => p.pressurePa),
+		boomHeightM: pickMeasured((p) => p.boomHeightM),
 		// A part without the column starts an interval at every fix.
 		isStart: parts.some((p) => p.isStart)
 			? (pick((p) => p.isStart ?? new Uint8Array(p.count).fill(1), (n) => new Uint8Array(n)) as Uint8Array)

@@ -6,7 +6,7 @@ import { eq, sql } from 'drizzle-orm';
 import { beforeAll, expect, test } from 'vitest';
 import { detectMapping } from '$lib/ingest/mapping';
 import { db } from '$lib/server/db';
-import { applicationFixes, applications, cellResults, fields, machines, tankMixes, uploads } from '$lib/server/db/schema';
+import { applicationFixes, applicationQuality, applications, cellResults, fields, machines, tankMixes, uploads } from '$lib/server/db/schema';
 import { join as joinFarm, makeFarm, makeUser } from '$lib/server/testing/fixtures';
 import { fieldGeometryColumns } from '$lib/geo/field-geometry';
 import * as rawStore from '$lib/server/storage/raw-store';
@@ -162,4 +162,61 @@ test('fixes outside every field are counted, not silently dropped', async () => 
 	const [done] = await db.select().from(uploads).where(eq(uploads.id, u.id));
 	expect(done.fixesOutside).toBe(1001);
 	expect(done.fixesUsed).toBe(0);
+});
+
+test('application quality: speed, pressure and boom height against the machine limits, the turn as a gap; a re-process uses new limits', async () => {
+	const ctx = await setUp();
+	await db
+		.update(machines)
+		.set({ maxSpeedMPerS: 20 / 3.6, targetHeightM: 0.5, heightToleranceM: 0.1, pressureMinPa: 2e5, pressureMaxPa: 4e5 })
+		.where(eq(machines.id, ctx.machine.id));
+	// Pass 1 at 18 km/h, 3 bar, 50 cm: fine. Pass 2 at 24 km/h, 1.5 bar, 80 cm: all three out.
+	const lines = passesCsv(2).trimEnd().split('\n');
+	const csv =
+		[
+			`${lines[0]},Speed [km/h],Pressure [bar],Boom height [cm]`,
+			...lines.slice(1).map((line, i) => (i < 1001 ? `${line},18,3,50` : `${line},24,1.5,80`))
+		].join('\n') + '\n';
+	const u = await upload(ctx, 'quality.csv', csv);
+	await processUpload(db, u.id, noProgress);
+	const [app] = await db.select().from(applications).where(eq(applications.fieldId, ctx.field.id));
+	const [q] = await db.select().from(applicationQuality).where(eq(applicationQuality.applicationId, app.id));
+	const s = q.summary;
+	// Two passes of 0.016° of longitude at about 47.12° N (mean sphere, as cleaning measures).
+	const passM = (eastLng - westLng) * 111_195.08 * Math.cos((47.1225 * Math.PI) / 180);
+	expect(s.sprayingDistanceM).toBeCloseTo(2 * passM, -1);
+	for (const check of [s.speed, s.pressure, s.height]) {
+		expect(check.status).toBe('checked');
+		if (check.status === 'checked') expect(check.sharePercent).toBeCloseTo(50, 0);
+	}
+	expect(s.speed.source).toBe('logged');
+	if (s.height.status === 'checked') expect(s.height.max).toBeCloseTo(0.8, 6);
+	// The 30 s turn between the passes, inside the field with no master column: one gap.
+	expect(s.gaps.count).toBe(1);
+	expect(s.gaps.seconds).toBeCloseTo(30.2, 1);
+	// The second pass is one flagged stretch (speed + height + pressure = 7), simplified to its ends.
+	const flagged = q.segments.filter((r) => r.f === 7);
+	expect(flagged).toHaveLength(1);
+	expect(flagged[0].c.length).toBeLessThanOrEqual(3);
+
+	// Limits changed in the catalogue reach the figures when the upload is processed again.
+	await db.update(machines).set({ maxSpeedMPerS: 30 / 3.6, pressureMinPa: null, pressureMaxPa: null }).where(eq(machines.id, ctx.machine.id));
+	await processUpload(db, u.id, noProgress);
+	const [again] = await db.select().from(applicationQuality).where(eq(applicationQuality.applicationId, app.id));
+	expect(again.summary.speed).toMatchObject({ status: 'checked', flaggedM: 0 });
+	expect(again.summary.pressure).toMatchObject({ status: 'no-limit', min: 1.5e5, max: 3e5 });
+});
+
+test('a log without speed, pressure or height columns is checked from positions and says what it lacks', async () => {
+	const ctx = await setUp();
+	const u = await upload(ctx, 'bare.csv', passesCsv(1));
+	await processUpload(db, u.id, noProgress);
+	const [app] = await db.select().from(applications).where(eq(applications.fieldId, ctx.field.id));
+	const [q] = await db.select().from(applicationQuality).where(eq(applicationQuality.applicationId, app.id));
+	// The machine sets no limits: the speed range seen (about 21.6 km/h from positions) is kept.
+	expect(q.summary.speed).toMatchObject({ status: 'no-limit', source: 'positions' });
+	if (q.summary.speed.status === 'no-limit') expect(q.summary.speed.max! * 3.6).toBeCloseTo(21.6, 0);
+	expect(q.summary.height).toEqual({ status: 'not-logged' });
+	expect(q.summary.pressure).toEqual({ status: 'not-logged' });
+	expect(q.segments).toEqual([]);
 });

@@ -6,6 +6,7 @@ import { and, eq, sql } from 'drizzle-orm';
 import type { MultiPolygon, Polygon } from 'geojson';
 import { cleanFixes, selectFixes } from '$lib/compute/clean-fixes';
 import { computeCoverage } from '$lib/compute/coverage';
+import { assessQuality } from '$lib/compute/quality';
 import { splitByField } from '$lib/compute/split-by-field';
 import type { CleaningReport, FixColumns, GridSpec } from '$lib/compute/types';
 import { fieldScaleFactor, projectLngLat, projectRings, utmZoneFor } from '$lib/geo/projection';
@@ -15,6 +16,7 @@ import type { ColumnMapping } from '$lib/ingest/mapping';
 import type { Db } from '$lib/server/db/create';
 import {
 	applicationFixes,
+	applicationQuality,
 	applications,
 	cellResults,
 	farms,
@@ -129,6 +131,13 @@ async function recomputeApplication(tx: Tx, applicationId: string, field: FieldR
 			computedAt: sql`now()`
 		})
 		.where(eq(applications.id, applicationId));
+	// Quality with the machine's limits as they are now; changing them takes a re-process.
+	const quality = assessQuality(fixes, machine);
+	const qualityRow = { summary: quality.summary, segments: quality.runs, segmentCount: quality.runs.length, computedAt: sql`now()` };
+	await tx
+		.insert(applicationQuality)
+		.values({ applicationId, ...qualityRow })
+		.onConflictDoUpdate({ target: applicationQuality.applicationId, set: qualityRow });
 	await tx.delete(cellResults).where(eq(cellResults.applicationId, applicationId));
 	// One statement per application: columns as arrays, unnested by the server. Row-by-row
 	// parameters would take tens of seconds for a field's few hundred thousand cells a season.

@@ -17,6 +17,16 @@ export const machines = pgTable(
 		/** Nominal flow of one nozzle at the reference pressure, L/s. */
 		nozzleFlowLPerS: doublePrecision(),
 		referencePressurePa: doublePrecision(),
+		// Application-quality profile (issue 8): the limits a log is checked against. Null = not
+		// checked. Sensors miss weeds when the boom runs too fast or too high (DOMAIN.md §2).
+		/** Fastest ground speed at which detection is trusted, m/s. */
+		maxSpeedMPerS: doublePrecision(),
+		/** Boom (sensor) height above the target, m, and the band either side of it, m. */
+		targetHeightM: doublePrecision(),
+		heightToleranceM: doublePrecision(),
+		/** Working range of the boom pressure, Pa. */
+		pressureMinPa: doublePrecision(),
+		pressureMaxPa: doublePrecision(),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 	},
 	(t) => [index().on(t.farmId)]

@@ -6,3 +6,4 @@ export * from './catalogue';
 export * from './uploads';
 export * from './results';
 export * from './map-tiles';
+export * from './records';

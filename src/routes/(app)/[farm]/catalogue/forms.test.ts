@@ -155,3 +155,31 @@ describe('tank mixes', () => {
 		expect(!foreign.ok && foreign.problems['product-0']).toBe('Choose a product from this farm’s catalogue.');
 	});
 });
+
+describe('machine quality limits', () => {
+	test('typed in US units, kept in SI: 12 mph, 40 ± 5 in, 30–60 psi (NIST SP 811: mph = 0.44704 m/s, in = 0.0254 m, psi = 6894.757 Pa)', () => {
+		const parsed = parseMachine(
+			form({ name: 'Spot boom', boomWidth: '120', nozzleCount: '144', nozzleSpacing: '10', maxSpeed: '12', targetHeight: '40', heightTolerance: '5', pressureMin: '30', pressureMax: '60' }),
+			'us'
+		);
+		if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+		expect(parsed.value.maxSpeedMPerS).toBeCloseTo(12 * 0.44704, 12);
+		expect(parsed.value.targetHeightM).toBeCloseTo(1.016, 12);
+		expect(parsed.value.heightToleranceM).toBeCloseTo(0.127, 12);
+		expect(parsed.value.pressureMinPa).toBeCloseTo(30 * 6894.757, 1);
+		expect(parsed.value.pressureMaxPa).toBeCloseTo(60 * 6894.757, 1);
+	});
+
+	test('limits are optional; a height needs its tolerance, the tolerance fits inside the height, min is below max', () => {
+		const none = parseMachine(form(metricBoom), 'metric');
+		expect(none.ok && none.value.maxSpeedMPerS).toBeNull();
+		const parsed = parseMachine(form({ ...metricBoom, targetHeight: '50', pressureMin: '4', pressureMax: '2', maxSpeed: '300' }), 'metric');
+		expect(parsed.ok).toBe(false);
+		if (parsed.ok) return;
+		expect(parsed.problems.heightTolerance).toBe('Give how far above or below the target height is still fine, or leave both empty.');
+		expect(parsed.problems.pressureMax).toBe('The highest pressure must be above the lowest (4 bar).');
+		expect(parsed.problems.maxSpeed).toBe('The maximum speed must be between 2 km/h and 60 km/h.');
+		const wide = parseMachine(form({ ...metricBoom, targetHeight: '50', heightTolerance: '60' }), 'metric');
+		expect(!wide.ok && wide.problems.heightTolerance).toBe('The tolerance must be less than the target height (50 cm).');
+	});
+});

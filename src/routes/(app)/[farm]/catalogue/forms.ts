@@ -17,6 +17,11 @@ export const limits = {
 	nozzleSpacingM: [0.05, 1],
 	nozzleFlowLPerS: [0.05 / 60, 20 / 60],
 	referencePressurePa: [0.5e5, 10e5],
+	/** Quality limits: 2 to 60 km/h; boom 10 cm to 3 m with 0.5 cm to 1 m either side; 0.2 to 20 bar. */
+	maxSpeedMPerS: [2 / 3.6, 60 / 3.6],
+	targetHeightM: [0.1, 3],
+	heightToleranceM: [0.005, 1],
+	pressureLimitPa: [0.2e5, 20e5],
 	/** Boom width and nozzle count x spacing must agree this closely (relative). */
 	boomMismatch: 0.01,
 	carrierRateLPerM2: [5e-4, 500e-4],
@@ -128,7 +133,12 @@ export function parseMachine(form: FormData, system: UnitSystem): Parsed<Machine
 		nozzleSpacing: text(form, 'nozzleSpacing'),
 		nozzlesPerSensor: text(form, 'nozzlesPerSensor'),
 		nozzleFlow: text(form, 'nozzleFlow'),
-		referencePressure: text(form, 'referencePressure')
+		referencePressure: text(form, 'referencePressure'),
+		maxSpeed: text(form, 'maxSpeed'),
+		targetHeight: text(form, 'targetHeight'),
+		heightTolerance: text(form, 'heightTolerance'),
+		pressureMin: text(form, 'pressureMin'),
+		pressureMax: text(form, 'pressureMax')
 	};
 	const c = new Checker();
 	const name = c.name(values.name);
@@ -158,6 +168,26 @@ export function parseMachine(form: FormData, system: UnitSystem): Parsed<Machine
 	if (values.referencePressure && !values.nozzleFlow && !c.problems.referencePressure) {
 		c.problems.nozzleFlow = 'Give the nozzle flow at this pressure, or leave both empty.';
 	}
+	const maxSpeedMPerS = c.quantity('maxSpeed', values.maxSpeed, 'speed', units.speed, limits.maxSpeedMPerS, { label: 'maximum speed' });
+	const targetHeightM = c.quantity('targetHeight', values.targetHeight, 'length', units.height, limits.targetHeightM, { label: 'target boom height' });
+	const heightToleranceM = c.quantity('heightTolerance', values.heightTolerance, 'length', units.height, limits.heightToleranceM, {
+		label: 'height tolerance'
+	});
+	const pressureMinPa = c.quantity('pressureMin', values.pressureMin, 'pressure', units.pressure, limits.pressureLimitPa, { label: 'lowest pressure' });
+	const pressureMaxPa = c.quantity('pressureMax', values.pressureMax, 'pressure', units.pressure, limits.pressureLimitPa, { label: 'highest pressure' });
+	// A target height means nothing without its band, and a band nothing without a target.
+	if (values.targetHeight && !values.heightTolerance && !c.problems.targetHeight) {
+		c.problems.heightTolerance = 'Give how far above or below the target height is still fine, or leave both empty.';
+	}
+	if (values.heightTolerance && !values.targetHeight && !c.problems.heightTolerance) {
+		c.problems.targetHeight = 'Give the target boom height for this tolerance, or leave both empty.';
+	}
+	if (targetHeightM !== null && heightToleranceM !== null && heightToleranceM >= targetHeightM) {
+		c.problems.heightTolerance = `The tolerance must be less than the target height (${formatIn('length', targetHeightM, units.height)}).`;
+	}
+	if (pressureMinPa !== null && pressureMaxPa !== null && pressureMinPa >= pressureMaxPa) {
+		c.problems.pressureMax = `The highest pressure must be above the lowest (${formatIn('pressure', pressureMinPa, units.pressure)}).`;
+	}
 	if (boomWidthM !== null && nozzleCount !== null && nozzleSpacingM !== null) {
 		const nozzlesM = nozzleCount * nozzleSpacingM;
 		const apart = Math.abs(nozzlesM - boomWidthM) / boomWidthM;
@@ -180,7 +210,12 @@ export function parseMachine(form: FormData, system: UnitSystem): Parsed<Machine
 			nozzleSpacingM: nozzleSpacingM!,
 			nozzlesPerSensor,
 			nozzleFlowLPerS,
-			referencePressurePa
+			referencePressurePa,
+			maxSpeedMPerS,
+			targetHeightM,
+			heightToleranceM,
+			pressureMinPa,
+			pressureMaxPa
 		}
 	};
 }
