@@ -52,21 +52,6 @@ function memoGridBbox(key: string, grid: GridSpec): Bbox {
 	return b;
 }
 
-/**
- * The map data version of a farm as every member but a landlord sees it, as SQL text: changes
- * when results are recomputed or removed, a field is added, edited or removed, or the threshold is
- * saved. mapContext builds the same text over its scoped fields. With `seasons` (a condition on
- * applications.season) it is the version of those seasons' data only: the pre-rendered pyramid
- * stores each season under its own, so new results for one season leave the others' tiles be.
- */
-export function farmVersionSql(farmId: SQL, seasons: SQL = sql`true`): SQL {
-	return sql`(coalesce((select max(computed_at)::text from applications where farm_id = ${farmId} and ${seasons}), '-') || '/' ||
-		(select count(*) from applications where farm_id = ${farmId} and ${seasons}) || '/' ||
-		coalesce((select max(updated_at)::text from fields where farm_id = ${farmId}), '') || '/' ||
-		(select count(*) from fields where farm_id = ${farmId}) || '/' ||
-		(select hotspot_threshold_percent::text from farms where id = ${farmId}))`;
-}
-
 /** One query: the visible fields' grids and what the farm's map data version depends on. */
 export async function mapContext(actor: Actor): Promise<MapContext> {
 	const granted =

@@ -1,7 +1,6 @@
 // Reading the pre-rendered cells pyramid (see pyramid-render.ts): one indexed lookup per tile.
 import { sql, type SQL } from 'drizzle-orm';
 import { db } from '$lib/server/db';
-import { farmVersionSql } from './data';
 import { datasetKey, type Dataset } from './dataset';
 import { TILE_FORMAT, type EncodedTile } from './tiles';
 
@@ -30,7 +29,17 @@ export function seasonsOf(d: Dataset): SQL {
 	throw new Error('pyramid: single applications are not pre-rendered');
 }
 
-/** The version a set is stored under: the tile format and its seasons' map data version. */
+/**
+ * The version a set is stored under, as SQL text: the tile format, and of its seasons'
+ * applications the latest computation, their count and the grids of their fields, and the farm's
+ * threshold. New results for one season leave the other seasons' tiles be; renaming a field or
+ * adding one without results changes no tile and redraws nothing.
+ */
 export function storedVersionSql(farmId: SQL, seasons: SQL): SQL {
-	return sql`(${`${TILE_FORMAT}|`} || ${farmVersionSql(farmId, seasons)})`;
+	const grid = sql`(f.id || ':' || f.grid_proj || ':' || f.grid_cell_m || ':' || f.grid_origin_x || ':' || f.grid_origin_y || ':' || f.grid_cols || ':' || f.grid_rows)`;
+	return sql`(${`${TILE_FORMAT}|`} ||
+		(select coalesce(max(a.computed_at)::text, '-') || '/' || count(*) || '/' ||
+			coalesce(md5(string_agg(distinct ${grid}, ',' order by ${grid})), '')
+			from applications a join fields f on f.id = a.field_id where a.farm_id = ${farmId} and ${seasons}) || '/' ||
+		(select hotspot_threshold_percent::text from farms where id = ${farmId}))`;
 }
