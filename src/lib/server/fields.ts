@@ -85,8 +85,10 @@ function assertMayEdit(actor: Actor) {
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
 /** Field creation and renaming take this lock, so two requests cannot both add the same name. */
+// NO KEY UPDATE: serialises field changes per farm without waiting on rows that merely refer to
+// the farm (a worker writing the farm's map tiles holds KEY SHARE on it).
 async function lockFarm(tx: Tx, farmId: string) {
-	await tx.select({ id: farms.id }).from(farms).where(eq(farms.id, farmId)).for('update');
+	await tx.select({ id: farms.id }).from(farms).where(eq(farms.id, farmId)).for('no key update');
 }
 
 async function takenNames(tx: Tx, farmId: string, exceptId?: string): Promise<Set<string>> {

@@ -6,7 +6,7 @@
 // one is an index lookup. Landlords' tiles, threshold previews and single applications stay live:
 // they are scoped or rare, and their LRU serves repeats.
 import { eq, sql } from 'drizzle-orm';
-import { db } from '$lib/server/db';
+import { client, db } from '$lib/server/db';
 import { mapTileSets, mapTiles } from '$lib/server/db/schema';
 import type { Actor } from '$lib/server/auth/guard';
 import { gridWorldCorners, tilesForBbox } from '$lib/geo/tiles';
@@ -89,49 +89,63 @@ export type RenderedSet = { dataset: string; tiles: number; stored: number; byte
 
 /**
  * Renders and stores the farm's datasets whose stored sets are missing or behind their data,
- * replacing older sets, and returns what it stored (nothing when all are current). A
- * transaction-level advisory lock keeps two workers from rendering one farm at once; if the data
- * changes while rendering, the set carries the old version and is simply never served.
+ * replacing older sets, and returns what it stored (nothing when all are current; null when
+ * another worker holds the farm). A session advisory lock keeps two workers off one farm; each
+ * dataset is written in its own short transaction, so nothing else waits on a render. The
+ * version is read before the cells: if the data changes meanwhile, the set carries the old
+ * version and is simply never served.
  */
 export async function renderFarmPyramid(farmId: string): Promise<RenderedSet[] | null> {
-	const actor = farmWide(farmId);
-	return db.transaction(async (tx) => {
-		const [lock] = await tx.execute<{ ok: boolean }>(sql`select pg_try_advisory_xact_lock(hashtext(${'map-pyramid:' + farmId})) as ok`);
-		if (!lock.ok) return null;
-		const ctx = await mapContext(actor);
-		const seasons = await tx.execute<{ season: number }>(sql`select distinct season from applications where farm_id = ${farmId}`);
-		const datasets = pyramidDatasets(seasons.map((s) => s.season));
-		const wanted = new Map<string, string>();
-		for (const d of datasets) {
-			const [row] = await tx.execute<{ v: string }>(sql`select ${storedVersionSql(sql`${farmId}::uuid`, seasonsOf(d))} as v`);
-			wanted.set(datasetKey(d), row.v);
+	const key = `map-pyramid:${farmId}`;
+	const conn = await client.reserve();
+	try {
+		const [{ ok }] = await conn<{ ok: boolean }[]>`select pg_try_advisory_lock(hashtext(${key})) as ok`;
+		if (!ok) return null;
+		try {
+			return await renderUnlocked(farmId);
+		} finally {
+			await conn`select pg_advisory_unlock(hashtext(${key}))`;
 		}
-		const stored = await tx.select({ id: mapTileSets.id, dataset: mapTileSets.dataset, version: mapTileSets.version }).from(mapTileSets).where(eq(mapTileSets.farmId, farmId));
-		const current = new Set<string>();
-		for (const s of stored) {
-			// Sets of datasets that no longer exist, and of older data, go.
-			if (wanted.get(s.dataset) === s.version && !current.has(s.dataset)) current.add(s.dataset);
-			else await tx.delete(mapTileSets).where(eq(mapTileSets.id, s.id));
-		}
-		const todo = datasets.filter((d) => !current.has(datasetKey(d)));
-		if (todo.length === 0) return [];
+	} finally {
+		conn.release();
+	}
+}
 
-		const whole = ctx.fields.map((f) => ({ fieldId: f.id, col0: 0, col1: f.grid.cols - 1, row0: 0, row1: f.grid.rows - 1 }));
-		const corners = new Map(ctx.fields.map((f) => [f.id, gridWorldCorners(f.grid)]));
-		const out: RenderedSet[] = [];
-		for (const d of todo) {
-			const started = performance.now();
-			const tiles = pyramidTiles(ctx.fields, maxZoomOf(d));
-			const bySpan = new Map<number, AnyRow[]>();
-			for (const span of SPANS) bySpan.set(span, await cellRows(actor, d, whole.map((r) => ({ ...r, ...blockAlign(r, span) })), span));
-			const rowsFor = rowsInMemory(bySpan);
-			const bodies: { z: number; x: number; y: number; body: Buffer }[] = [];
-			for (const [z, x, y] of tiles) {
-				const body = await drawCellsTile(ctx.fields, d, ctx.savedThresholdPercent, z, x, y, rowsFor, corners);
-				if (body) bodies.push({ z, x, y, body });
-			}
-			const bytes = bodies.reduce((s, b) => s + b.body.length, 0);
-			const ms = Math.round(performance.now() - started);
+async function renderUnlocked(farmId: string): Promise<RenderedSet[]> {
+	const actor = farmWide(farmId);
+	const seasons = await db.execute<{ season: number }>(sql`select distinct season from applications where farm_id = ${farmId}`);
+	const datasets = pyramidDatasets(seasons.map((s) => s.season));
+	const wanted = new Map<string, string>();
+	for (const d of datasets) {
+		const [row] = await db.execute<{ v: string }>(sql`select ${storedVersionSql(sql`${farmId}::uuid`, seasonsOf(d))} as v`);
+		wanted.set(datasetKey(d), row.v);
+	}
+	const ctx = await mapContext(actor);
+	const stored = await db.select({ id: mapTileSets.id, dataset: mapTileSets.dataset, version: mapTileSets.version }).from(mapTileSets).where(eq(mapTileSets.farmId, farmId));
+	const current = new Set<string>();
+	for (const s of stored) {
+		// Sets of datasets that no longer exist, and of older data, go.
+		if (wanted.get(s.dataset) === s.version && !current.has(s.dataset)) current.add(s.dataset);
+		else await db.delete(mapTileSets).where(eq(mapTileSets.id, s.id));
+	}
+	const todo = datasets.filter((d) => !current.has(datasetKey(d)));
+	const whole = ctx.fields.map((f) => ({ fieldId: f.id, col0: 0, col1: f.grid.cols - 1, row0: 0, row1: f.grid.rows - 1 }));
+	const corners = new Map(ctx.fields.map((f) => [f.id, gridWorldCorners(f.grid)]));
+	const out: RenderedSet[] = [];
+	for (const d of todo) {
+		const started = performance.now();
+		const tiles = pyramidTiles(ctx.fields, maxZoomOf(d));
+		const bySpan = new Map<number, AnyRow[]>();
+		for (const span of SPANS) bySpan.set(span, await cellRows(actor, d, whole.map((r) => ({ ...r, ...blockAlign(r, span) })), span));
+		const rowsFor = rowsInMemory(bySpan);
+		const bodies: { z: number; x: number; y: number; body: Buffer }[] = [];
+		for (const [z, x, y] of tiles) {
+			const body = await drawCellsTile(ctx.fields, d, ctx.savedThresholdPercent, z, x, y, rowsFor, corners);
+			if (body) bodies.push({ z, x, y, body });
+		}
+		const bytes = bodies.reduce((s, b) => s + b.body.length, 0);
+		const ms = Math.round(performance.now() - started);
+		await db.transaction(async (tx) => {
 			const [set] = await tx
 				.insert(mapTileSets)
 				.values({ farmId, dataset: datasetKey(d), thresholdPercent: ctx.savedThresholdPercent, version: wanted.get(datasetKey(d))!, minZoom: CELLS_MIN_ZOOM, maxZoom: maxZoomOf(d), tileCount: tiles.length, bytes, renderMs: ms })
@@ -139,10 +153,10 @@ export async function renderFarmPyramid(farmId: string): Promise<RenderedSet[] |
 			for (let i = 0; i < bodies.length; i += 500) {
 				await tx.insert(mapTiles).values(bodies.slice(i, i + 500).map((b) => ({ setId: set.id, ...b })));
 			}
-			out.push({ dataset: datasetKey(d), tiles: tiles.length, stored: bodies.length, bytes, ms });
-		}
-		return out;
-	});
+		});
+		out.push({ dataset: datasetKey(d), tiles: tiles.length, stored: bodies.length, bytes, ms });
+	}
+	return out;
 }
 
 /** Farms with a season whose stored tiles are missing or behind its data: what a worker should render next. One query for all farms. */

@@ -30,15 +30,16 @@ export function seasonsOf(d: Dataset): SQL {
 }
 
 /**
- * The version a set is stored under, as SQL text: the tile format, and of its seasons'
- * applications the latest computation, their count and the grids of their fields, and the farm's
- * threshold. New results for one season leave the other seasons' tiles be; renaming a field or
- * adding one without results changes no tile and redraws nothing.
+ * The version a set is stored under, as SQL text: the tile format; of its seasons' applications
+ * the sum of their computation times (not the latest: a recomputation committed late with an
+ * earlier time still counts), their count and their fields' grids; and the farm's threshold. New
+ * results for one season leave the other seasons' tiles be; renaming a field, or adding one
+ * without results, changes no tile and draws nothing again.
  */
 export function storedVersionSql(farmId: SQL, seasons: SQL): SQL {
 	const grid = sql`(f.id || ':' || f.grid_proj || ':' || f.grid_cell_m || ':' || f.grid_origin_x || ':' || f.grid_origin_y || ':' || f.grid_cols || ':' || f.grid_rows)`;
 	return sql`(${`${TILE_FORMAT}|`} ||
-		(select coalesce(max(a.computed_at)::text, '-') || '/' || count(*) || '/' ||
+		(select coalesce(sum(extract(epoch from a.computed_at))::text, '-') || '/' || count(*) || '/' ||
 			coalesce(md5(string_agg(distinct ${grid}, ',' order by ${grid})), '')
 			from applications a join fields f on f.id = a.field_id where a.farm_id = ${farmId} and ${seasons}) || '/' ||
 		(select hotspot_threshold_percent::text from farms where id = ${farmId}))`;
