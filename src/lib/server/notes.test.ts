@@ -5,7 +5,7 @@ import { existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join as joinPath } from 'node:path';
 import { and, eq } from 'drizzle-orm';
-import sharp from 'sharp';
+import sharp, { type Sharp } from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { db } from '$lib/server/db';
 import { auditLog, fields } from '$lib/server/db/schema';
@@ -28,7 +28,7 @@ let webp: Uint8Array;
 
 // A 1200 x 800 picture: big enough that the thumbnail must shrink it.
 const picture = () => sharp({ create: { width: 1200, height: 800, channels: 3, background: { r: 138, g: 90, b: 43 } } });
-const bytesOf = async (s: sharp.Sharp) => new Uint8Array(await s.toBuffer());
+const bytesOf = async (s: Sharp) => new Uint8Array(await s.toBuffer());
 const input = (over: Partial<notes.NoteInput> = {}): notes.NoteInput => ({ season: 2025, lng: 0.005, lat: 0.005, body: 'Kochia patch by the gate, check after rain.', photo: null, ...over });
 
 beforeAll(async () => {
@@ -183,7 +183,7 @@ describe('reading the note form', () => {
 	const multipart = (bytes: Uint8Array) => {
 		const form = new FormData();
 		form.set('body', 'With a photo');
-		form.set('photo', new File([bytes], 'p.jpg', { type: 'image/jpeg' }));
+		form.set('photo', new File([new Uint8Array(bytes)], 'p.jpg', { type: 'image/jpeg' }));
 		return new Request('http://x/', { method: 'POST', body: form });
 	};
 
