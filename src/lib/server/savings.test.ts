@@ -139,6 +139,20 @@ describe('savings report from the database', () => {
 		expect(ok).toEqual({ filter: { season: 2024, fieldId: ids.cd }, problems: [] });
 	});
 
+	it('without a season in the URL the latest season shows; season=all shows every one', async () => {
+		expect((await reportFor(actors.manager, new URLSearchParams(''))).filter).toEqual({ season: 2025 });
+		expect((await reportFor(actors.manager, new URLSearchParams('season=all'))).rows).toHaveLength(7);
+	});
+
+	it('per field and season: money that adds up to the season totals; a season without the field is empty', async () => {
+		const r = await report(actors.manager, {});
+		const nf = r.byField.find((f) => f.fieldId === ids.nf)!;
+		expect(nf.seasons[2024]).toBeNull();
+		expect(nf.seasons[2025]).toBeCloseTo(844.8 + 417.12, 6);
+		for (const s of r.bySeason) expect(r.byField.reduce((sum, f) => sum + (f.seasons[s.season] ?? 0), 0)).toBeCloseTo(s.savedCost, 9);
+		expect(r.byField.reduce((sum, f) => sum + f.savedCost, 0)).toBeCloseTo(r.totals.savedCost, 9);
+	});
+
 	it('another farm’s applications never show', async () => {
 		const mine = await allRows(actors.manager);
 		expect(mine.every((r) => r.fieldId === ids.nf || r.fieldId === ids.cd)).toBe(true);
@@ -151,7 +165,7 @@ describe('savings report from the database', () => {
 	});
 
 	it('the CSV holds the same rows as the page', async () => {
-		const r = await reportFor(actors.manager, new URLSearchParams('season=2025'));
+		const r = await reportFor(actors.manager, new URLSearchParams(''));
 		const csv = savingsCsv(r.rows, 'metric', 'USD');
 		expect(csv.trimEnd().split('\r\n')).toHaveLength(1 + 5);
 		expect(csv).toContain('2025,North Flat,Glyphosate 540 (demo),1,100,150,,18,,132,,88,6.4,,960,115.2,844.8,1.152,8.448');

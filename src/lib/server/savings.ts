@@ -4,7 +4,7 @@ import { error } from '@sveltejs/kit';
 import { mayOpen, type Actor } from '$lib/server/auth/guard';
 import * as catalogue from '$lib/server/catalogue';
 import * as figures from '$lib/server/figures';
-import { filterRows, savingsRows, savingsTotals, type CatalogueProduct, type SavingsFilter, type SavingsRow, type SavingsTotals } from '$lib/compute/savings-table';
+import { filterRows, savedCostByField, savingsRows, savingsTotals, type CatalogueProduct, type SavingsFilter, type SavingsRow, type SavingsTotals } from '$lib/compute/savings-table';
 
 export type SavingsReport = {
 	/** Seasons with applications, newest first. */
@@ -16,6 +16,8 @@ export type SavingsReport = {
 	totals: SavingsTotals;
 	/** Money saved per season over every field and product (unfiltered), newest first. */
 	bySeason: { season: number; savedCost: number; broadcastCost: number; appliedCost: number; unpriced: string[] }[];
+	/** Money saved per field in each season (unfiltered; null where the field had no application), by name. */
+	byField: { fieldId: string; fieldName: string; seasons: Record<number, number | null>; savedCost: number }[];
 };
 
 /** Every row the actor may see, before any filter. Managers only: the report is all prices. */
@@ -54,6 +56,16 @@ export async function report(actor: Actor, filter: SavingsFilter): Promise<Savin
 		bySeason: seasons.map((season) => {
 			const t = savingsTotals(rows.filter((r) => r.season === season));
 			return { season, savedCost: t.savedCost, broadcastCost: t.broadcastCost, appliedCost: t.appliedCost, unpriced: t.unpriced };
+		}),
+		byField: fields.map((f) => {
+			const own = rows.filter((r) => r.fieldId === f.id);
+			const perSeason = Object.fromEntries(
+				seasons.map((season) => {
+					const inSeason = own.filter((r) => r.season === season);
+					return [season, inSeason.length ? (savedCostByField(inSeason).get(f.id) ?? 0) : null];
+				})
+			);
+			return { fieldId: f.id, fieldName: f.name, seasons: perSeason, savedCost: savedCostByField(own).get(f.id) ?? 0 };
 		})
 	};
 }
@@ -63,12 +75,15 @@ export type ParsedFilter = { filter: SavingsFilter; problems: string[] };
 /**
  * The filter in a URL (?season=2025&field=<id>&product=<id>), checked against what the report
  * holds: a value that names nothing is dropped with a sentence saying so, never an error page.
+ * Without a season the latest is shown; season=all shows every season.
  */
 export function parseFilter(params: URLSearchParams, known: { seasons: number[]; fields: { id: string; name: string }[]; products: { id: string }[] }): ParsedFilter {
 	const problems: string[] = [];
 	const filter: SavingsFilter = {};
 	const season = params.get('season');
-	if (season && season !== 'all') {
+	if (season === null) {
+		if (known.seasons.length) filter.season = known.seasons[0];
+	} else if (season !== 'all') {
 		const n = Number(season);
 		if (Number.isInteger(n) && known.seasons.includes(n)) filter.season = n;
 		else problems.push(`Season “${season}” has no applications; showing every season.`);
