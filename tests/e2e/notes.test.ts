@@ -104,6 +104,36 @@ test('an agronomist pins a note with a photo on the map; it shows on the map and
 	await expect(listed).toContainText('edited');
 });
 
+test('on a phone an agronomist taps Add note, then the map, and writes the note', async ({ page }) => {
+	test.setTimeout(90_000);
+	await page.setViewportSize(viewports.phone);
+	await openMap(page, people.agronomist);
+	await page.locator('button[aria-controls="map-sheet"]').click();
+	await page.getByTestId('add-note').click();
+	// The sheet folds away so the map can be tapped.
+	await expect(page.locator('#map-sheet')).toBeHidden();
+	await expect(page.getByRole('status').filter({ hasText: 'Tap where the note belongs' })).toBeVisible();
+	await page.screenshot({ path: 'tests/screenshots/notes-place-phone.png' });
+	const box = (await page.getByTestId('map').boundingBox())!;
+	await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2);
+	await expect(page.getByTestId('note-draft')).toBeVisible();
+	const form = page.getByTestId('note-add-form');
+	await expect(form).toBeVisible();
+	await form.getByLabel('Note').fill(`Check the wet corner after rain (${stamp})`);
+	await form.getByTestId('note-photo').setInputFiles({ name: 'corner.jpg', mimeType: 'image/jpeg', buffer: await photo() });
+	await page.screenshot({ path: 'tests/screenshots/notes-add-phone.png' });
+	await form.getByRole('button', { name: 'Save note' }).click();
+	const card = page.getByTestId('map-notes').getByTestId('note');
+	await expect(card.getByTestId('note-body')).toHaveText(`Check the wet corner after rain (${stamp})`);
+	expect(await loaded(page, '[data-testid="map-notes"] [data-testid="note"] [data-testid="note-thumb"]')).toBe(480);
+	await expect(card).not.toContainText('outside the fields');
+	await page.screenshot({ path: 'tests/screenshots/notes-map-phone.png' });
+	// Tidy up: the author deletes it.
+	await card.getByRole('button', { name: 'Delete' }).click();
+	await page.getByRole('dialog').getByRole('button', { name: 'Delete note' }).click();
+	await expect(card).toHaveCount(0);
+});
+
 test('a file that is no image is refused with its name; nothing is saved', async ({ page }) => {
 	await openMap(page, people.agronomist);
 	const before = ((await (await page.request.get('/api/farms/tallowgrass/notes')).json()) as unknown[]).length;
