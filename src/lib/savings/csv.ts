@@ -1,7 +1,7 @@
-// The savings report as CSV (RFC 4180: CRLF line ends; fields with commas, quotes or line breaks
-// quoted, quotes doubled; written by papaparse). Numbers are plain (no grouping) in the user's
-// units, and every header names its unit, so a liquid and a dry product get their own columns.
-import Papa from 'papaparse';
+// The savings report as CSV (RFC 4180, through the exports' writer in $lib/export/csv: CRLF line
+// ends, quotes doubled, formulas escaped). Numbers are plain (no grouping) in the user's units,
+// and every header names its unit, so a liquid and a dry product get their own columns.
+import { toCsv } from '$lib/export/csv';
 import { fromSi } from '$lib/compute/units';
 import type { SavingsRow } from '$lib/compute/savings-table';
 import { unitsFor, type UnitSystem } from '$lib/format';
@@ -71,8 +71,5 @@ export function savingsCsv(rows: SavingsRow[], system: UnitSystem, currency: str
 			round(r.savedCostPerM2 === null ? null : perShownArea(r.savedCostPerM2, system), 4)
 		];
 	});
-	// Papaparse ends no line after the last record; RFC 4180 allows either, spreadsheets prefer one.
-	// Names are typed by people: one starting with = + - @ is prefixed with ' so a spreadsheet
-	// does not run it as a formula (OWASP, CSV injection).
-	return Papa.unparse({ fields: header, data: body }, { newline: '\r\n', quotes: false, escapeFormulae: true }) + '\r\n';
+	return toCsv(header, body);
 }
