@@ -112,6 +112,13 @@ describe('field year over year', () => {
 		expect(trend.pairs[0]).toMatchObject({ persistent: 1, new: 1, cleared: 1, persistentAreaM2: 100, newAreaM2: 80, clearedAreaM2: 100 });
 	});
 
+	it('a field with one season: its own hotspots, no pairs; other fields never count', async () => {
+		const trend = await fieldTrend(manager, other);
+		expect(trend.pairs).toEqual([]);
+		expect(trend.seasons).toHaveLength(1);
+		expect(trend.seasons[0]).toMatchObject({ season: 2025, hotspots: 1, hotspotAreaM2: 100, sprayedPercent: 90 });
+	});
+
 	it('money saved only for roles that see prices', async () => {
 		expect((await fieldTrend(operator, field)).seasons.every((s) => s.savedCost === null)).toBe(true);
 	});

@@ -50,10 +50,25 @@ export async function fieldTrend(actor: Actor, field: Pick<Field, 'id'>): Promis
 		where a.farm_id = ${actor.farm.id} and a.field_id = ${field.id}
 		group by a.season`);
 	const seesPrices = may(actor.role, 'prices.view');
+	// Consecutive pairs compared with the map's summary; each season's own hotspots follow from
+	// them (later = persistent + new, earlier = persistent + cleared), so a lone season alone needs
+	// a season summary of its own.
+	const order = bySeason.map((s) => s.season);
+	const pairs: PairTrend[] = [];
+	for (let i = 1; i < order.length; i++) {
+		const earlier = order[i - 1], later = order[i];
+		const c = (await summary(actor, { dataset: { kind: 'compare', earlier, later }, thresholdPercent: null }, { fieldIds: [field.id] })).compare!;
+		pairs.push({ earlier, later, persistent: c.persistent, new: c.new, cleared: c.cleared, persistentAreaM2: c.persistentAreaM2, newAreaM2: c.newAreaM2, clearedAreaM2: c.clearedAreaM2 });
+	}
+	const hotspotsOf = async (i: number): Promise<{ hotspots: number; hotspotAreaM2: number }> => {
+		if (i > 0) return { hotspots: pairs[i - 1].persistent + pairs[i - 1].new, hotspotAreaM2: pairs[i - 1].persistentAreaM2 + pairs[i - 1].newAreaM2 };
+		if (pairs.length) return { hotspots: pairs[0].persistent + pairs[0].cleared, hotspotAreaM2: pairs[0].persistentAreaM2 + pairs[0].clearedAreaM2 };
+		const one = await summary(actor, { dataset: { kind: 'season', season: order[0] }, thresholdPercent: null }, { fieldIds: [field.id] });
+		return { hotspots: one.hotspots, hotspotAreaM2: one.hotspotAreaM2 };
+	};
 	const seasons: SeasonTrend[] = [];
-	for (const s of bySeason) {
+	for (const [i, s] of bySeason.entries()) {
 		const l = liquid.find((x) => x.season === s.season);
-		const hot = await summary(actor, { dataset: { kind: 'season', season: s.season }, thresholdPercent: null }, { fieldIds: [field.id] });
 		const costs = s.products.map((p) => p.savedCost);
 		seasons.push({
 			season: s.season,
@@ -63,15 +78,8 @@ export async function fieldTrend(actor: Actor, field: Pick<Field, 'id'>): Promis
 			sprayedPercent: s.coveredM2 > 0 ? (100 * s.sprayedM2) / s.coveredM2 : null,
 			savedPercent: l && l.broadcast > 0 ? 100 * (1 - l.volume / l.broadcast) : null,
 			savedCost: seesPrices && costs.length && costs.every((c) => c !== null) ? costs.reduce((a, c) => a + c!, 0) : null,
-			hotspots: hot.hotspots,
-			hotspotAreaM2: hot.hotspotAreaM2
+			...(await hotspotsOf(i))
 		});
-	}
-	const pairs: PairTrend[] = [];
-	for (let i = 1; i < seasons.length; i++) {
-		const earlier = seasons[i - 1].season, later = seasons[i].season;
-		const c = (await summary(actor, { dataset: { kind: 'compare', earlier, later }, thresholdPercent: null }, { fieldIds: [field.id] })).compare!;
-		pairs.push({ earlier, later, persistent: c.persistent, new: c.new, cleared: c.cleared, persistentAreaM2: c.persistentAreaM2, newAreaM2: c.newAreaM2, clearedAreaM2: c.clearedAreaM2 });
 	}
 	const [farm] = await db.execute<{ t: number }>(sql`select hotspot_threshold_percent as t from farms where id = ${actor.farm.id}`);
 	return { seasons, pairs, thresholdPercent: farm?.t ?? 20 };

@@ -3,7 +3,7 @@
 // edit and delete their own notes, managers any; every change is audited.
 import { error } from '@sveltejs/kit';
 import { booleanPointInPolygon } from '@turf/turf';
-import { and, desc, eq, ne, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, ne, sql } from 'drizzle-orm';
 import sharp from 'sharp';
 import { db } from '$lib/server/db';
 import { fields, notes, users, type Note } from '$lib/server/db/schema';
@@ -99,7 +99,7 @@ export async function list(actor: Actor, filter: { seasons?: number[]; fieldId?:
 		.where(
 			and(
 				eq(notes.farmId, actor.farm.id),
-				filter.seasons ? (filter.seasons.length ? sql`${notes.season} in ${filter.seasons}` : sql`false`) : undefined,
+				filter.seasons ? (filter.seasons.length ? inArray(notes.season, filter.seasons) : sql`false`) : undefined,
 				filter.fieldId ? eq(notes.fieldId, filter.fieldId) : undefined
 			)
 		)
