@@ -55,6 +55,8 @@ test('a manager adds a priced product and a tank mix with its label rate; a prod
 	const mix = `Knockdown ${run} (test)`;
 	await signIn(page, people.manager);
 	await page.goto('/tallowgrass/catalogue');
+	// A <details> opened before hydration is closed again when the page hydrates.
+	await page.locator('html[data-hydrated="true"]').waitFor();
 
 	await page.getByText('Add a product').click();
 	const addProduct = page.locator('details', { hasText: 'Add a product' });

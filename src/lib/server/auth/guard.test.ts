@@ -21,6 +21,20 @@ describe('what each role may open (DESIGN.md roles table)', () => {
 	});
 });
 
+describe('notes (the team’s working notes)', () => {
+	test('managers and agronomists write notes, operators read them, landlords neither', () => {
+		expect(['manager', 'agronomist'].every((r) => may(r as 'manager', 'notes.write'))).toBe(true);
+		expect(may('operator', 'notes.write')).toBe(false);
+		expect(may('operator', 'notes.view')).toBe(true);
+		expect(may('landlord', 'notes.view')).toBe(false);
+		expect(may('landlord', 'notes.write')).toBe(false);
+	});
+	test('only managers change other people’s notes', () => {
+		expect(may('manager', 'notes.moderate')).toBe(true);
+		for (const role of ['agronomist', 'operator', 'landlord'] as const) expect(may(role, 'notes.moderate')).toBe(false);
+	});
+});
+
 describe('the guard against the database', () => {
 	test('no user: a page redirects to sign-in, an API answers 401', async () => {
 		expect(() => requireUser(eventFor(null, {}, '/x'))).toThrow();

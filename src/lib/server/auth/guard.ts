@@ -41,7 +41,12 @@ export const abilities = {
 	// print a record for them.
 	'records.view': ['manager', 'agronomist', 'operator'],
 	// Operators only for applications from their own uploads (enforced in $lib/server/records).
-	'records.sign': ['manager', 'agronomist', 'operator']
+	'records.sign': ['manager', 'agronomist', 'operator'],
+	// Notes are the team's working notes: operators read them in the cab, landlords never see
+	// them (not even on granted fields). Authors edit and delete their own; managers any.
+	'notes.view': ['manager', 'agronomist', 'operator'],
+	'notes.write': ['manager', 'agronomist'],
+	'notes.moderate': ['manager']
 } as const satisfies Record<string, readonly Role[]>;
 export type Ability = keyof typeof abilities;
 

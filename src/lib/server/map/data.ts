@@ -272,15 +272,17 @@ export type MapSummary = {
 };
 
 /**
- * Counts over full-resolution cells of every visible field. In compare mode the cell, hotspot and
+ * Counts over full-resolution cells of every visible field (or of `fieldIds` among them). In compare mode the cell, hotspot and
  * per-field figures are the later season's. Covered and sprayed areas sum the applications, as
  * the share does. Only fields with cells in the dataset are listed, by name.
  */
-export async function summary(actor: Actor, query: MapQuery): Promise<MapSummary> {
+export async function summary(actor: Actor, query: MapQuery, options: { fieldIds?: string[] } = {}): Promise<MapSummary> {
 	const ctx = await mapContext(actor);
 	const t = query.thresholdPercent ?? ctx.savedThresholdPercent;
 	const d = query.dataset;
-	const regions = ctx.fields.map((f) => ({ fieldId: f.id, col0: 0, col1: f.grid.cols - 1, row0: 0, row1: f.grid.rows - 1 }));
+	// One field's page asks for its own figures only (the year-over-year chart).
+	const shown = options.fieldIds ? ctx.fields.filter((f) => options.fieldIds!.includes(f.id)) : ctx.fields;
+	const regions = shown.map((f) => ({ fieldId: f.id, col0: 0, col1: f.grid.cols - 1, row0: 0, row1: f.grid.rows - 1 }));
 	const empty: MapSummary = { cells: 0, hotspots: 0, hotspotAreaM2: 0, perField: [] };
 	if (d.kind === 'compare') empty.compare = { earlier: d.earlier, later: d.later, persistent: 0, new: 0, cleared: 0, persistentAreaM2: 0, newAreaM2: 0, clearedAreaM2: 0 };
 	if (regions.length === 0) return empty;

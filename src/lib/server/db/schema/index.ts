@@ -7,3 +7,4 @@ export * from './uploads';
 export * from './results';
 export * from './map-tiles';
 export * from './records';
+export * from './notes';

@@ -6,18 +6,29 @@ import { farms } from '$lib/server/db/schema';
 import { setHotspotThreshold } from '$lib/server/farms';
 import * as fields from '$lib/server/fields';
 import * as mapData from '$lib/server/map/data';
+import * as notes from '$lib/server/notes';
+import { addNote, deleteNote, editNote } from '$lib/server/note-actions';
 import type { Actions, PageServerLoad } from './$types';
 
 // The page loads what frames the map and its seasons; figures and cells come from the map's JSON
 // and tile APIs in the browser, so changing the season or the threshold does not reload the page.
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireRole(event, 'map');
-	const [fieldMap, [farm], meta] = await Promise.all([
+	const [fieldMap, [farm], meta, farmNotes] = await Promise.all([
 		fields.featureCollection(actor),
 		db.select({ threshold: farms.hotspotThresholdPercent }).from(farms).where(eq(farms.id, actor.farm.id)),
-		mapData.meta(actor)
+		mapData.meta(actor),
+		// Every season's notes: a farm has tens a season, and switching seasons then needs no request.
+		may(actor.role, 'notes.view') ? notes.list(actor) : []
 	]);
-	return { fieldMap, meta, thresholdPercent: farm.threshold, canSetThreshold: may(actor.role, 'hotspots.set') };
+	return {
+		fieldMap,
+		meta,
+		thresholdPercent: farm.threshold,
+		canSetThreshold: may(actor.role, 'hotspots.set'),
+		notes: farmNotes,
+		canWriteNotes: may(actor.role, 'notes.write')
+	};
 };
 
 export const actions: Actions = {
@@ -28,5 +39,8 @@ export const actions: Actions = {
 		const result = await setHotspotThreshold(actor, percent);
 		if ('error' in result) return fail(400, { action: 'threshold', message: result.error, value: raw });
 		return { action: 'threshold', saved: true, thresholdPercent: result.percent };
-	}
+	},
+	noteAdd: addNote,
+	noteEdit: editNote,
+	noteDelete: deleteNote
 };

@@ -3,6 +3,9 @@ import { may, requireRole } from '$lib/server/auth/guard';
 import * as fields from '$lib/server/fields';
 import type { Actor } from '$lib/server/auth/guard';
 import * as figures from '$lib/server/figures';
+import { fieldTrend, smallMultiples } from '$lib/server/field-trend';
+import * as notes from '$lib/server/notes';
+import { deleteNote, editNote } from '$lib/server/note-actions';
 import type { Actions, PageServerLoad } from './$types';
 
 async function fieldFigures(actor: Actor, fieldId: string) {
@@ -15,11 +18,16 @@ export const load: PageServerLoad = async (event) => {
 	const field = await fields.get(actor, event.params.id);
 	if (!field) error(404, 'No such field in this farm.');
 	const canEdit = may(actor.role, 'fields.edit');
+	const trend = await fieldTrend(actor, field);
 	return {
 		field,
 		canEdit,
 		applicationCount: canEdit ? await fields.applicationCount(actor, field.id) : 0,
-		...(await fieldFigures(actor, field.id))
+		...(await fieldFigures(actor, field.id)),
+		trend,
+		smallMultiples: await smallMultiples(actor, field, trend.seasons.map((s) => s.season)),
+		notes: may(actor.role, 'notes.view') ? await notes.list(actor, { fieldId: field.id }) : null,
+		canWriteNotes: may(actor.role, 'notes.write')
 	};
 };
 
@@ -46,6 +54,8 @@ export const actions: Actions = {
 		if ('error' in result) return fail(400, { action: 'boundary', message: result.error });
 		return { action: 'boundary', saved: true };
 	},
+	noteEdit: editNote,
+	noteDelete: deleteNote,
 	remove: async (event) => {
 		const actor = await requireRole(event, 'fields.edit');
 		if (!(await fields.remove(actor, event.params.id))) error(404, 'No such field in this farm.');

@@ -1,0 +1,342 @@
+// Notes pinned to a point of the farm for a season, with an optional photo. Scoped by farm;
+// landlords are refused outright (notes are the team's working notes, see guard.ts). Authors
+// edit and delete their own notes, managers any; every change is audited.
+import { error } from '@sveltejs/kit';
+import { booleanPointInPolygon } from '@turf/turf';
+import { and, desc, eq, inArray, ne, sql } from 'drizzle-orm';
+import sharp from 'sharp';
+import { db } from '$lib/server/db';
+import { fields, notes, users, type Note } from '$lib/server/db/schema';
+import { may, type Actor } from '$lib/server/auth/guard';
+import { record } from '$lib/server/audit';
+import { putPhoto, readPhoto, removePhoto } from '$lib/server/storage/photo-store';
+import { bodyProblem, photoProblem, sniffPhotoType, PHOTO_MAX_BYTES } from '$lib/notes/photo';
+
+export type NoteView = {
+	id: string;
+	fieldId: string | null;
+	fieldName: string | null;
+	/** Set once notes can be pinned to zones (see the schema's comment); null until then. */
+	zoneId: string | null;
+	season: number;
+	lng: number;
+	lat: number;
+	body: string;
+	hasPhoto: boolean;
+	authorName: string | null;
+	isOwn: boolean;
+	canEdit: boolean;
+	createdAt: string;
+	updatedAt: string;
+};
+
+export const SEASON_MIN = 1990;
+export const SEASON_MAX = 2100;
+/** Thumbnails fit in this square, in pixels: enough for a list and a map card on a phone. */
+const THUMB_PX = 480;
+/** Decoding bigger images than this (pixels) is refused: a decompression bomb, not a photo. */
+const MAX_INPUT_PIXELS = 60_000_000;
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+function requireView(actor: Actor) {
+	if (!may(actor.role, 'notes.view')) error(403, 'Your role in this farm does not allow reading notes.');
+}
+function requireWrite(actor: Actor) {
+	if (!may(actor.role, 'notes.write')) error(403, 'Your role in this farm does not allow writing notes.');
+}
+
+/** Authors may change their own notes while their role writes notes; managers any note of the farm. */
+export function mayEdit(actor: Actor, note: Pick<Note, 'authorId'>): boolean {
+	return may(actor.role, 'notes.moderate') || (may(actor.role, 'notes.write') && note.authorId === actor.user.id);
+}
+
+const columns = {
+	id: notes.id,
+	fieldId: notes.fieldId,
+	fieldName: fields.name,
+	zoneId: notes.zoneId,
+	season: notes.season,
+	lng: notes.lng,
+	lat: notes.lat,
+	body: notes.body,
+	photoSha256: notes.photoSha256,
+	authorId: notes.authorId,
+	authorName: users.name,
+	createdAt: notes.createdAt,
+	updatedAt: notes.updatedAt
+};
+
+function select() {
+	return db.select(columns).from(notes).leftJoin(fields, eq(fields.id, notes.fieldId)).leftJoin(users, eq(users.id, notes.authorId));
+}
+type Row = Awaited<ReturnType<typeof select>>[number];
+
+function view(actor: Actor, r: Row): NoteView {
+	return {
+		id: r.id,
+		fieldId: r.fieldId,
+		fieldName: r.fieldName,
+		zoneId: r.zoneId,
+		season: r.season,
+		lng: r.lng,
+		lat: r.lat,
+		body: r.body,
+		hasPhoto: r.photoSha256 !== null,
+		authorName: r.authorName,
+		isOwn: r.authorId === actor.user.id,
+		canEdit: mayEdit(actor, r),
+		createdAt: r.createdAt.toISOString(),
+		updatedAt: r.updatedAt.toISOString()
+	};
+}
+
+/** The farm's notes, newest first; optionally of some seasons or one field. */
+export async function list(actor: Actor, filter: { seasons?: number[]; fieldId?: string } = {}): Promise<NoteView[]> {
+	requireView(actor);
+	if (filter.fieldId !== undefined && !uuidPattern.test(filter.fieldId)) return [];
+	const rows = await select()
+		.where(
+			and(
+				eq(notes.farmId, actor.farm.id),
+				filter.seasons ? (filter.seasons.length ? inArray(notes.season, filter.seasons) : sql`false`) : undefined,
+				filter.fieldId ? eq(notes.fieldId, filter.fieldId) : undefined
+			)
+		)
+		.orderBy(desc(notes.season), desc(notes.createdAt));
+	return rows.map((r) => view(actor, r));
+}
+
+async function row(actor: Actor, id: string) {
+	if (!uuidPattern.test(id)) return null;
+	const [note] = await db.select().from(notes).where(and(eq(notes.farmId, actor.farm.id), eq(notes.id, id)));
+	return note ?? null;
+}
+
+export async function get(actor: Actor, id: string): Promise<NoteView | null> {
+	requireView(actor);
+	if (!uuidPattern.test(id)) return null;
+	const [r] = await select().where(and(eq(notes.farmId, actor.farm.id), eq(notes.id, id)));
+	return r ? view(actor, r) : null;
+}
+
+/** The farm's field whose boundary holds the point, or null (a yard, a gate, a track). */
+async function fieldAt(actor: Actor, lng: number, lat: number): Promise<string | null> {
+	const rows = await db.select({ id: fields.id, boundary: fields.boundary }).from(fields).where(eq(fields.farmId, actor.farm.id));
+	return rows.find((f) => booleanPointInPolygon([lng, lat], f.boundary))?.id ?? null;
+}
+
+export type PhotoUpload = { fileName: string; bytes: Uint8Array };
+export type NoteInput = { season: number; lng: number; lat: number; body: string; photo: PhotoUpload | null };
+export type Problem = { field: 'body' | 'season' | 'position' | 'photo' | 'note'; message: string };
+type Stored = { photoSha256: string; photoType: string; photoBytes: number; thumbSha256: string };
+
+function checkSeason(season: number): Problem | null {
+	return Number.isInteger(season) && season >= SEASON_MIN && season <= SEASON_MAX
+		? null
+		: { field: 'season', message: `The season must be a year from ${SEASON_MIN} to ${SEASON_MAX}.` };
+}
+
+/** Stores the photo and its thumbnail; a problem when the bytes are no usable image. */
+async function storePhoto(photo: PhotoUpload): Promise<Stored | Problem> {
+	const problem = photoProblem(photo.fileName, photo.bytes);
+	if (problem) return { field: 'photo', message: problem };
+	let thumb: Buffer;
+	try {
+		// rotate() turns the picture as its EXIF orientation says, so a phone photo stands upright.
+		thumb = await sharp(photo.bytes, { limitInputPixels: MAX_INPUT_PIXELS })
+			.rotate()
+			.resize(THUMB_PX, THUMB_PX, { fit: 'inside', withoutEnlargement: true })
+			.webp({ quality: 78 })
+			.toBuffer();
+	} catch {
+		return { field: 'photo', message: `${photo.fileName || 'The photo'} starts like an image but could not be read as one; it may be damaged or too large.` };
+	}
+	return {
+		photoSha256: await putPhoto(photo.bytes),
+		photoType: sniffPhotoType(photo.bytes)!,
+		photoBytes: photo.bytes.length,
+		thumbSha256: await putPhoto(thumb)
+	};
+}
+
+/** Removes a photo's files when no other note of any farm holds the same bytes. */
+async function dropPhotoFiles(photoSha256: string | null, thumbSha256: string | null, exceptNoteId: string) {
+	for (const [sha, column] of [[photoSha256, notes.photoSha256], [thumbSha256, notes.thumbSha256]] as const) {
+		if (!sha) continue;
+		const [other] = await db
+			.select({ id: notes.id })
+			.from(notes)
+			.where(and(ne(notes.id, exceptNoteId), eq(column, sha)))
+			.limit(1);
+		if (!other) await removePhoto(sha);
+	}
+}
+
+export async function create(actor: Actor, input: NoteInput): Promise<{ note: NoteView } | { problem: Problem }> {
+	requireWrite(actor);
+	const body = input.body.trim();
+	const bodyIssue = bodyProblem(body);
+	if (bodyIssue) return { problem: { field: 'body', message: bodyIssue } };
+	const seasonIssue = checkSeason(input.season);
+	if (seasonIssue) return { problem: seasonIssue };
+	if (!(Math.abs(input.lng) <= 180 && Math.abs(input.lat) <= 90)) {
+		return { problem: { field: 'position', message: 'Pick the note’s place on the map (longitude −180 to 180, latitude −90 to 90).' } };
+	}
+	let stored: Stored | null = null;
+	if (input.photo) {
+		const result = await storePhoto(input.photo);
+		if ('field' in result) return { problem: result };
+		stored = result;
+	}
+	const fieldId = await fieldAt(actor, input.lng, input.lat);
+	const [note] = await db
+		.insert(notes)
+		.values({ farmId: actor.farm.id, fieldId, season: input.season, lng: input.lng, lat: input.lat, body, authorId: actor.user.id, ...stored })
+		.returning({ id: notes.id });
+	await record({
+		farmId: actor.farm.id,
+		actorId: actor.user.id,
+		action: 'note.created',
+		targetType: 'note',
+		targetId: note.id,
+		detail: { season: input.season, fieldId, lng: input.lng, lat: input.lat, photo: stored ? { sha256: stored.photoSha256, bytes: stored.photoBytes } : null }
+	});
+	return { note: (await get(actor, note.id))! };
+}
+
+export type NoteChange = { body: string; season: number; photo: PhotoUpload | 'remove' | null };
+
+/** null when there is no such note in the farm; 403 when the actor may not change it. */
+export async function update(actor: Actor, id: string, change: NoteChange): Promise<{ note: NoteView } | { problem: Problem } | null> {
+	requireWrite(actor);
+	const note = await row(actor, id);
+	if (!note) return null;
+	if (!mayEdit(actor, note)) error(403, 'Only the note’s author or a manager may change it.');
+	const body = change.body.trim();
+	const bodyIssue = bodyProblem(body);
+	if (bodyIssue) return { problem: { field: 'body', message: bodyIssue } };
+	const seasonIssue = checkSeason(change.season);
+	if (seasonIssue) return { problem: seasonIssue };
+	let photo: Partial<Stored> | { photoSha256: null; photoType: null; photoBytes: null; thumbSha256: null } = {};
+	if (change.photo === 'remove') photo = { photoSha256: null, photoType: null, photoBytes: null, thumbSha256: null };
+	else if (change.photo) {
+		const result = await storePhoto(change.photo);
+		if ('field' in result) return { problem: result };
+		photo = result;
+	}
+	await db.update(notes).set({ body, season: change.season, ...photo, updatedAt: sql`now()` }).where(eq(notes.id, id));
+	const photoChanged = 'photoSha256' in photo && photo.photoSha256 !== note.photoSha256;
+	if (photoChanged) await dropPhotoFiles(note.photoSha256, note.thumbSha256, id);
+	const changed: Record<string, unknown> = {};
+	if (body !== note.body) changed.body = { from: note.body, to: body };
+	if (change.season !== note.season) changed.season = { from: note.season, to: change.season };
+	if (photoChanged) changed.photo = { from: note.photoSha256, to: photo.photoSha256 ?? null };
+	if (Object.keys(changed).length) {
+		await record({
+			farmId: actor.farm.id,
+			actorId: actor.user.id,
+			action: 'note.edited',
+			targetType: 'note',
+			targetId: id,
+			detail: { ...changed, authorId: note.authorId }
+		});
+	}
+	return { note: (await get(actor, id))! };
+}
+
+/** The deleted note's text (for an undo), or null when there is no such note in the farm. */
+export async function remove(actor: Actor, id: string): Promise<{ body: string } | null> {
+	requireWrite(actor);
+	const note = await row(actor, id);
+	if (!note) return null;
+	if (!mayEdit(actor, note)) error(403, 'Only the note’s author or a manager may delete it.');
+	await db.delete(notes).where(eq(notes.id, id));
+	await dropPhotoFiles(note.photoSha256, note.thumbSha256, id);
+	await record({
+		farmId: actor.farm.id,
+		actorId: actor.user.id,
+		action: 'note.deleted',
+		targetType: 'note',
+		targetId: id,
+		// What was deleted stays readable in the audit log; the photo's bytes do not.
+		detail: { season: note.season, fieldId: note.fieldId, lng: note.lng, lat: note.lat, body: note.body, authorId: note.authorId, photo: note.photoSha256 }
+	});
+	return { body: note.body };
+}
+
+/** A note's photo or thumbnail for a reader of the farm's notes; null when there is none. */
+export async function photo(actor: Actor, id: string, size: 'thumb' | 'full'): Promise<{ bytes: Buffer; type: string; sha256: string } | null> {
+	requireView(actor);
+	const note = await row(actor, id);
+	const sha = size === 'thumb' ? note?.thumbSha256 : note?.photoSha256;
+	if (!note || !sha) return null;
+	const bytes = await readPhoto(sha);
+	if (!bytes) return null;
+	return { bytes, type: size === 'thumb' ? 'image/webp' : (note.photoType ?? 'application/octet-stream'), sha256: sha };
+}
+
+// ---------------------------------------------------------------- forms
+
+/** Bigger request bodies than this are refused before they are read: the photo plus the text. */
+export const NOTE_FORM_MAX_BYTES = PHOTO_MAX_BYTES + 256 * 1024;
+
+/**
+ * The request's form data, or a sentence when the body is too big. The limit is checked on the
+ * declared length first and on the bytes as they arrive, so a huge upload is never held whole.
+ */
+export async function readNoteForm(request: Request): Promise<FormData | { tooLarge: string }> {
+	const tooLarge = { tooLarge: `The note is too large: a photo may be at most ${PHOTO_MAX_BYTES / 1024 / 1024} MB.` };
+	const declared = Number(request.headers.get('content-length'));
+	if (declared > NOTE_FORM_MAX_BYTES) return tooLarge;
+	if (!request.body) return await request.formData();
+	const chunks: Uint8Array[] = [];
+	let size = 0;
+	const reader = request.body.getReader();
+	for (;;) {
+		const { done, value } = await reader.read();
+		if (done) break;
+		size += value.length;
+		if (size > NOTE_FORM_MAX_BYTES) {
+			await reader.cancel();
+			return tooLarge;
+		}
+		chunks.push(value);
+	}
+	const body = new Uint8Array(size);
+	let at = 0;
+	for (const c of chunks) {
+		body.set(c, at);
+		at += c.length;
+	}
+	return await new Response(body, { headers: { 'content-type': request.headers.get('content-type') ?? '' } }).formData();
+}
+
+async function photoFrom(form: FormData): Promise<PhotoUpload | null> {
+	const file = form.get('photo');
+	if (!(file instanceof File) || file.size === 0) return null;
+	return { fileName: file.name, bytes: new Uint8Array(await file.arrayBuffer()) };
+}
+
+const numberFrom = (form: FormData, key: string) => {
+	const raw = String(form.get(key) ?? '').trim();
+	return raw === '' ? NaN : Number(raw);
+};
+
+export async function inputFrom(form: FormData): Promise<NoteInput> {
+	return {
+		season: numberFrom(form, 'season'),
+		lng: numberFrom(form, 'lng'),
+		lat: numberFrom(form, 'lat'),
+		body: String(form.get('body') ?? ''),
+		photo: await photoFrom(form)
+	};
+}
+
+export async function changeFrom(form: FormData): Promise<NoteChange> {
+	return {
+		season: numberFrom(form, 'season'),
+		body: String(form.get('body') ?? ''),
+		photo: form.get('removePhoto') === 'on' ? 'remove' : await photoFrom(form)
+	};
+}
