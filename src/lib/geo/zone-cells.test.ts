@@ -28,7 +28,7 @@ function jstsOf(polygons: XYPolygon[]): JGeometry {
 	// Local coordinates (grid origin at 0, 0): JTS overlay is most robust on small numbers.
 	const ring = (r: [number, number][]) => gf.createLinearRing(r.map(([x, y]) => new Coordinate(x - grid.originX, y - grid.originY)));
 	const polys = polygons.map(([outer, ...holes]) => gf.createPolygon(ring(outer), holes.map(ring)));
-	return gf.createMultiPolygon(polys) as JGeometry;
+	return gf.createMultiPolygon(polys) as unknown as JGeometry;
 }
 
 /** JTS's answer: cells as squares, unioned, buffered with mitred corners. */

@@ -126,7 +126,7 @@ async function applicationInputs(actor: Actor, fieldId: string): Promise<Applica
 	}));
 }
 
-export type FieldZoneSummary = ZoneSummary & { seasons: number[]; seesMoney: boolean };
+export type FieldZoneSummary = ZoneSummary & { fieldId: string; fieldName: string; seasons: number[]; seesMoney: boolean };
 
 /**
  * The zone table of a field the actor may see, for a season (default: the latest with data) and
@@ -148,5 +148,5 @@ export async function fieldZoneSummary(actor: Actor, fieldId: string, season?: n
 		applications: used,
 		zoneParts: parts
 	});
-	return { ...summary, seasons, seesMoney: may(actor.role, 'prices.view') };
+	return { ...summary, fieldId: field.id, fieldName: field.name, seasons, seesMoney: may(actor.role, 'prices.view') };
 }
