@@ -1,7 +1,7 @@
 // Zones of a field: read, create (drawn, imported or from hotspots, all-or-nothing), rename,
 // describe, set a target rate, reshape and delete, each audited. Every function takes the Actor
 // and scopes by farm and, for landlords, by granted fields; changes need the zones.edit ability.
-import { and, asc, eq, inArray, ne, sql } from 'drizzle-orm';
+import { and, eq, inArray, ne, sql } from 'drizzle-orm';
 import type { Feature, FeatureCollection, MultiPolygon, Polygon } from 'geojson';
 import { db } from '$lib/server/db';
 import { fields, zones, type Zone } from '$lib/server/db/schema';
@@ -58,8 +58,8 @@ export async function zoneFeatures(actor: Actor, fieldId?: string): Promise<Feat
 	const rows = await db
 		.select({ id: zones.id, fieldId: zones.fieldId, name: zones.name, areaM2: zones.areaM2, targetRateLPerM2: zones.targetRateLPerM2, geometry: zones.geometry })
 		.from(zones)
-		.where(fieldId ? and(zoneScope(actor), eq(zones.fieldId, fieldId)) : zoneScope(actor))
-		.orderBy(asc(zones.name));
+		.where(fieldId ? and(zoneScope(actor), eq(zones.fieldId, fieldId)) : zoneScope(actor));
+	rows.sort(byName);
 	return {
 		type: 'FeatureCollection',
 		features: rows.map(({ geometry, ...p }): Feature<Polygon | MultiPolygon, ZoneProps> => ({ type: 'Feature', id: p.id, properties: p, geometry }))

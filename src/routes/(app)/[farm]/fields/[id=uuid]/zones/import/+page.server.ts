@@ -34,7 +34,8 @@ type Read = { preview: ZonePreview } | { message: string; needsCrs: boolean };
 
 async function readUpload(actor: Parameters<typeof previewZones>[0], fieldId: string, data: FormData): Promise<Read> {
 	const file = data.get('file');
-	if (!(file instanceof File) || file.size === 0 || !file.name) return { message: 'Choose a zone file first (GeoJSON, zipped shapefile, KML or GPX).', needsCrs: false };
+	if (!(file instanceof File) || !file.name) return { message: 'Choose a zone file first (GeoJSON, zipped shapefile, KML or GPX).', needsCrs: false };
+	if (file.size === 0) return { message: `${file.name}: the file is empty.`, needsCrs: false };
 	if (file.size > MAX_FILE_BYTES) return { message: `${file.name}: the file is ${(file.size / 1048576).toFixed(1)} MB; zone files up to 25 MB are accepted.`, needsCrs: false };
 	const epsgText = String(data.get('epsg') ?? '').trim().replace(/^epsg:/i, '');
 	const epsg = epsgText ? Number(epsgText) : undefined;
