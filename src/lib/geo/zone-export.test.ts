@@ -1,6 +1,11 @@
 // The zone export read back by an independent reader: the `shapefile` npm package (Mike
 // Bostock's streaming reader, not the writer's author) and fflate's unzip. Areas are compared
-// with GeographicLib's geodesic polygon area; attributes field by field.
+// with GeographicLib's geodesic polygon area; attributes field by field. Where GDAL is installed
+// (Debian's gdal-bin), its ogrinfo reads the zip too: the reference reader of the GIS world.
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { unzipSync, strFromU8 } from 'fflate';
 import type { MultiPolygon, Polygon } from 'geojson';
@@ -86,6 +91,31 @@ describe('zone shapefile', () => {
 		const z = unzipSync(zonesShapefile([long], 'z'));
 		const fc = await read(z['z.shp'], z['z.dbf'], { encoding: 'utf-8' });
 		expect(fc.features[0].properties!.name).toBe('é'.repeat(127));
+	});
+});
+
+const hasOgrinfo = (() => {
+	try {
+		execFileSync('ogrinfo', ['--version'], { stdio: 'ignore' });
+		return true;
+	} catch {
+		return false;
+	}
+})();
+
+describe('zone shapefile read by GDAL', () => {
+	it.skipIf(!hasOgrinfo)('ogrinfo finds WGS 84, the UTF-8 names, the numeric rates and every polygon', () => {
+		const dir = mkdtempSync(join(tmpdir(), 'pb-zones-ogr-'));
+		writeFileSync(join(dir, 'zones.zip'), zonesShapefile(zones, 'north-flat-zones'));
+		const out = execFileSync('ogrinfo', ['-ro', '-al', `/vsizip/${join(dir, 'zones.zip')}`], { encoding: 'utf8' });
+		expect(out).toContain('Geometry: Polygon');
+		expect(out).toContain('Feature Count: 3');
+		expect(out).toContain('ID["EPSG",4326]');
+		expect(out).toMatch(/rate_l_ha: Real/);
+		expect(out).toContain('name (String) = Wet corner – Nordhang');
+		expect(out).toContain('rate_l_ha (Real) = 100.000');
+		expect(out).toMatch(/rate_l_ha \(Real\) = \(null\)/);
+		expect(out.match(/MULTIPOLYGON|POLYGON \(\(/g)?.length).toBe(3);
 	});
 });
 

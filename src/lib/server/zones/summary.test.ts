@@ -28,6 +28,7 @@ import * as rawStore from '$lib/server/storage/raw-store';
 import { grant, join as joinFarm, makeFarm, makeUser } from '$lib/server/testing/fixtures';
 import { hotspotPreview } from './hotspots';
 import { fieldZoneSummary } from './summary';
+import { updateBoundary } from '$lib/server/fields';
 import { createZones, listZones, removeZone, reshapeZone, updateZone } from './zones';
 
 beforeAll(() => {
@@ -124,10 +125,11 @@ async function restDrawnAlone(ctx: Ctx, season: number) {
 
 describe('zone summary of a field with drawn, cut and hotspot zones', () => {
 	let ctx: Ctx;
+	let upload2026: Awaited<ReturnType<typeof processLog>>;
 	beforeAll(async () => {
 		ctx = await setUp();
 		await processLog(ctx, '2025.csv', patchyCsv('2025-04-14', 4, false));
-		await processLog(ctx, '2026.csv', patchyCsv('2026-04-13', 4, true));
+		upload2026 = await processLog(ctx, '2026.csv', patchyCsv('2026-04-13', 4, true));
 		const agronomist = ctx.actor('agronomist');
 		const made = await createZones(
 			agronomist,
@@ -219,6 +221,14 @@ describe('zone summary of a field with drawn, cut and hotspot zones', () => {
 		const row = s.rows.find((r) => r.id === zone.id)!;
 		expect(row.areaM2).toBeCloseTo(areaM2((await listZones(manager, ctx.field.id)).find((z) => z.id === zone.id)!.geometry), 6);
 		expect(before[0].n).toBeGreaterThan(0);
+		// Processing the log again recomputes its application: the zone is drawn again from it.
+		const [app] = await db.select().from(applications).where(and(eq(applications.fieldId, ctx.field.id), eq(applications.season, 2026)));
+		const [kept] = await db.select().from(zoneResults).where(and(eq(zoneResults.zoneId, zone.id), eq(zoneResults.applicationId, app.id)));
+		await processUpload(db, upload2026.id, async () => {});
+		await fieldZoneSummary(manager, ctx.field.id, 2026);
+		const [fresh] = await db.select().from(zoneResults).where(and(eq(zoneResults.zoneId, zone.id), eq(zoneResults.applicationId, app.id)));
+		expect(fresh.applicationComputedAt).not.toBe(kept.applicationComputedAt);
+		expect(fresh.coveredM2).toBeCloseTo(kept.coveredM2, 6);
 	});
 
 	it('operators see no money; landlords see only granted fields; other farms see nothing', async () => {
@@ -253,6 +263,34 @@ describe('a zone over the whole field', () => {
 		expect(Math.abs(rest.coveredM2)).toBeLessThan(0.5);
 		expect(Math.abs(rest.areaM2)).toBeLessThan(0.01);
 	}, 60_000);
+});
+
+describe('a new field boundary', () => {
+	it('cuts the zones to it, and removes a zone left outside', async () => {
+		const ctx = await setUp();
+		const manager = ctx.actor('manager');
+		const made = await createZones(
+			manager,
+			ctx.field.id,
+			[
+				{ name: 'East', geometry: rect(-118.305, 47.122, -118.301, 47.125) },
+				{ name: 'Far east', geometry: rect(-118.3015, 47.126, -118.3005, 47.127) }
+			],
+			{ via: 'drawn' }
+		);
+		if (!made || 'problems' in made) throw new Error('not saved');
+		// The field loses its eastern 0.003°.
+		const result = await updateBoundary(manager, ctx.field.id, rect(-118.32, 47.12, -118.303, 47.129));
+		expect(result && 'ok' in result).toBe(true);
+		const left = await listZones(manager, ctx.field.id);
+		expect(left.map((z) => z.name)).toEqual(['East']);
+		expect(left[0].areaM2).toBeLessThan(made.zones[0].areaM2 * 0.6);
+		const [audit] = await db.select({ detail: auditLog.detail }).from(auditLog).where(and(eq(auditLog.targetId, ctx.field.id), eq(auditLog.action, 'field.boundary_edited')));
+		expect((audit.detail as { zonesCut: { name: string; areaM2After: number }[] }).zonesCut.map((z) => [z.name, z.areaM2After > 0])).toEqual([
+			['East', true],
+			['Far east', false]
+		]);
+	});
 });
 
 describe('saving zones', () => {

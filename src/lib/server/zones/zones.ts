@@ -297,6 +297,27 @@ export async function reshapeZone(
 	return { ok: true, zone: result.zone };
 }
 
+/**
+ * After a field's boundary changed: every zone cut to the new boundary, so zones stay inside the
+ * field and the zone table still adds up. A zone left with nothing is removed. Runs inside the
+ * boundary's own transaction; returns what changed for its audit entry.
+ */
+export async function fitZonesToBoundary(tx: Tx, fieldId: string, boundary: ZoneGeometry, proj: string) {
+	const rows = await tx.select({ id: zones.id, name: zones.name, geometry: zones.geometry, areaM2: zones.areaM2 }).from(zones).where(eq(zones.fieldId, fieldId));
+	const changed: { id: string; name: string; areaM2Before: number; areaM2After: number }[] = [];
+	for (const z of rows) {
+		const clipped = clipZone(z.geometry, boundary, [], proj);
+		if (!clipped.ok) {
+			await tx.delete(zones).where(eq(zones.id, z.id));
+			changed.push({ id: z.id, name: z.name, areaM2Before: z.areaM2, areaM2After: 0 });
+		} else if (clipped.outsideM2 >= 0.01) {
+			await tx.update(zones).set({ geometry: clipped.geometry, areaM2: clipped.areaM2, updatedAt: sql`now()`, geometryUpdatedAt: sql`now()` }).where(eq(zones.id, z.id));
+			changed.push({ id: z.id, name: z.name, areaM2Before: z.areaM2, areaM2After: clipped.areaM2 });
+		}
+	}
+	return changed;
+}
+
 /** Deletes a zone (and its computed figures); false when there is no such zone in the farm. */
 export async function removeZone(actor: Actor, zoneId: string): Promise<boolean> {
 	assertMayEdit(actor);
