@@ -111,6 +111,10 @@ describe('cellsToPolygons', () => {
 			{ col: 0, row: 3 }, { col: 1, row: 3 }, { col: 2, row: 3 }
 		];
 		compare(cells, 0);
+		// A ring of eight cells less its north-east corner: the empty middle meets the outside at
+		// one point, so the outline has a hole touching it there.
+		const [p] = compare([[0, 0], [1, 0], [2, 0], [0, 1], [2, 1], [0, 2], [1, 2]].map(([col, row]) => ({ col, row })), 0);
+		expect(p.rings).toHaveLength(2);
 	});
 
 	it('matches JTS on invented hotspot maps, buffers 0 to 12 m', () => {

@@ -12,6 +12,7 @@ import type { Polygon } from 'geojson';
 import { areaM2 } from './area';
 import { describeField } from './field-geometry';
 import { fieldScaleFactor, projectRings } from './projection';
+import { checkBoundary } from './fields-boundary';
 import { clipNote, clipZone, hotspotZones, intersection, type ZoneGeometry } from './zones';
 
 const rect = (w: number, s: number, e: number, n: number): Polygon => ({ type: 'Polygon', coordinates: [[[w, s], [e, s], [e, n], [w, n], [w, s]]] });
@@ -134,6 +135,24 @@ describe('hotspotZones', () => {
 		const again = hotspotZones({ cells, grid, boundary: field, existing: [cover], bufferM: 5, minAreaM2: 500 });
 		expect(again.zones).toHaveLength(0);
 		expect(again.insideExisting).toBe(1);
+	});
+
+	it('a patch that closes on itself at a corner is a valid zone: a hole touching its outline', () => {
+		// A ring of 3 x 3 cells without its middle and its north-east corner: the empty middle
+		// meets the outside only at that corner's inner point.
+		const cells = [[0, 0], [1, 0], [2, 0], [0, 1], [2, 1], [0, 2], [1, 2]].map(([c, r]) => ({ col: 60 + c, row: 50 + r }));
+		const made = hotspotZones({ cells, grid, boundary: field, existing: [], bufferM: 0, minAreaM2: 0 });
+		expect(made.zones).toHaveLength(1);
+		const g = made.zones[0].geometry;
+		expect(g.type === 'Polygon' && g.coordinates.length).toBe(2);
+		// Fields refuse rings that touch; zones accept them, and still refuse a real crossing.
+		expect(checkBoundary(g)).toMatchObject({ error: expect.stringContaining('crosses itself') });
+		expect(checkBoundary(g, { allowTouching: true })).toMatchObject({ areaM2: expect.any(Number) });
+		const bowTie = { type: 'Polygon', coordinates: [[[-118.31, 47.12], [-118.305, 47.125], [-118.305, 47.12], [-118.31, 47.125], [-118.31, 47.12]]] };
+		expect(checkBoundary(bowTie, { allowTouching: true })).toMatchObject({ error: expect.stringContaining('crosses itself') });
+		// Two squares touching at a corner: two parts, neither inside the other.
+		const touching = { type: 'MultiPolygon', coordinates: [rect(-118.31, 47.12, -118.309, 47.121).coordinates, rect(-118.309, 47.121, -118.308, 47.122).coordinates] };
+		expect(checkBoundary(touching, { allowTouching: true })).toMatchObject({ areaM2: expect.any(Number) });
 	});
 
 	it('checks its options', () => {

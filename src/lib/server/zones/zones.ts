@@ -136,7 +136,7 @@ function prepare(
 		if ((item.description ?? '').length > ZONE_DESCRIPTION_MAX) problems.push({ index, message: `Use at most ${ZONE_DESCRIPTION_MAX} characters for the description.` });
 		const rateIssue = targetRateProblem(item.targetRateLPerM2 ?? null);
 		if (rateIssue) problems.push({ index, message: rateIssue });
-		const checked = checkBoundary(item.geometry);
+		const checked = checkBoundary(item.geometry, { allowTouching: true });
 		if ('error' in checked) {
 			problems.push({ index, message: `The shape is not usable: ${checked.error}.` });
 			return;
@@ -269,7 +269,7 @@ export async function reshapeZone(
 	geometry: unknown
 ): Promise<{ ok: true; zone: SavedZone } | { error: string } | null> {
 	assertMayEdit(actor);
-	const checked = checkBoundary(geometry);
+	const checked = checkBoundary(geometry, { allowTouching: true });
 	if ('error' in checked) return { error: `The shape is not usable: ${checked.error}.` };
 	type Outcome = { error: string } | { zone: SavedZone; before: number } | null;
 	const result = await db.transaction(async (tx): Promise<Outcome> => {
