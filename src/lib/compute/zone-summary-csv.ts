@@ -1,9 +1,17 @@
-// The zone table as CSV (RFC 4180, see rfc4180.ts) in the reader's unit system, each column's
-// unit in its name (area_ha or area_ac, volume_l or volume_gal, ...), one set of product columns
-// per product of the season's tank mixes, money only for those who may see prices.
+// The zone table as CSV (RFC 4180, through the exports' writer src/lib/export/csv.ts) in the
+// reader's unit system, each column's unit in its name (area_ha or area_ac, volume_l or
+// volume_gal, ...), one set of product columns per product of the season's tank mixes, money only
+// for those who may see prices.
+import { toCsv, type CsvValue } from '../export/csv';
 import { fromSi } from './units';
-import { fixed, toCsv, type CsvValue } from './rfc4180';
 import type { ZoneSummary } from './zone-summary';
+
+/** A number rounded to `decimals` for a CSV cell, without a "-0". */
+export function fixed(value: number | null | undefined, decimals: number): number | null {
+	if (value === null || value === undefined || !Number.isFinite(value)) return null;
+	const r = Number(value.toFixed(decimals));
+	return Object.is(r, -0) ? 0 : r;
+}
 
 export type CsvOptions = { units: 'metric' | 'us'; currency: string; seesMoney: boolean };
 

@@ -4,7 +4,7 @@
 import Papa from 'papaparse';
 import { describe, expect, it } from 'vitest';
 import { summariseZones, type ApplicationInput, type Area3 } from './zone-summary';
-import { columnStem, zoneSummaryCsv } from './zone-summary-csv';
+import { columnStem, fixed, zoneSummaryCsv } from './zone-summary-csv';
 
 const gly = { id: 'p-gly', name: 'Glyphosate 540 (demo)', unit: 'L' as const, ratePerM2: 1.5e-4, pricePerUnit: 6.4 };
 const apps: ApplicationInput[] = [
@@ -91,6 +91,19 @@ describe('zoneSummaryCsv', () => {
 		expect(Number(data[0].area_ac)).toBeCloseTo(1050 / 4046.8564224, 4);
 		expect(Number(data[0].volume_gal)).toBeCloseTo(8 / 3.785411784, 3);
 		expect(Number(data[0].target_rate_gal_ac)).toBeCloseTo(0.012 / (3.785411784 / 4046.8564224), 3);
+	});
+
+	it('rounds numbers for a cell without printing -0', () => {
+		expect(Object.is(fixed(-0.00001, 3), -0)).toBe(false);
+		expect(fixed(-0.00001, 3)).toBe(0);
+		expect(fixed(1.23456, 2)).toBe(1.23);
+		expect(fixed(null, 2)).toBeNull();
+	});
+
+	it('keeps a zone name that looks like a formula from running in a spreadsheet', () => {
+		const s = summary();
+		s.rows[0].name = '=HYPERLINK("x")';
+		expect(zoneSummaryCsv(s, { units: 'metric', currency: 'USD', seesMoney: false })).toContain(`"'=HYPERLINK(""x"")"`);
 	});
 
 	it('makes column stems from product names', () => {

@@ -6,7 +6,9 @@
 // .prj (WGS84) and a .cpg (UTF-8). Not shp-write's own zip(), because it writes Polygon and
 // MultiPolygon features to two files of the same name (the second replaces the first), types a
 // column that is empty in every feature as text, writes text one UTF-16 code unit per byte and
-// takes ring order as given, while the format wants outer rings clockwise.
+// takes ring order as given, while the format wants outer rings clockwise. Not the cell exports'
+// src/lib/export/shapefile.ts either: it lets the writer guess column types from the values, and
+// a target-rate column not yet set in any zone must still be a number for a rate controller.
 import { write as writeShapes } from '@mapbox/shp-write';
 import { structure as dbfTable } from 'dbf';
 import { zipSync, strToU8 } from 'fflate';
