@@ -82,13 +82,13 @@ export function targetRateProblem(rate: number | null): string | null {
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
-/** The field, locked: two requests cannot both add overlapping zones or the same name. */
+/** The field, locked: two requests cannot both add overlapping zones or the same name (NO KEY: uploads that insert rows referencing the field need not wait). */
 async function lockField(tx: Tx, actor: Actor, fieldId: string) {
 	const [field] = await tx
 		.select({ id: fields.id, boundary: fields.boundary, name: fields.name, gridProj: fields.gridProj })
 		.from(fields)
 		.where(and(eq(fields.farmId, actor.farm.id), eq(fields.id, fieldId)))
-		.for('update');
+		.for('no key update');
 	return field ?? null;
 }
 
