@@ -37,7 +37,7 @@ function cleanRing(ring: unknown, where: string): Position[] | string {
  * part inside another, no area, an implausible size). Parts and holes are kept as they are.
  * @example checkBoundary({ type: 'Polygon', coordinates: [[[0,0],[1,1],[1,0],[0,1],[0,0]]] }) // { error: 'the boundary crosses itself near 0.500000, 0.500000' }
  */
-export function checkBoundary(input: unknown): BoundaryCheck {
+export function checkBoundary(input: unknown, { allowTouching = false }: { allowTouching?: boolean } = {}): BoundaryCheck {
 	let geometry = input as { type?: unknown; coordinates?: unknown; geometry?: unknown } | null;
 	if (geometry && geometry.type === 'Feature') geometry = geometry.geometry as typeof geometry;
 	if (!geometry || (geometry.type !== 'Polygon' && geometry.type !== 'MultiPolygon')) {
@@ -62,8 +62,11 @@ export function checkBoundary(input: unknown): BoundaryCheck {
 		? { type: 'MultiPolygon', coordinates: polygons }
 		: { type: 'Polygon', coordinates: polygons[0] };
 
-	// kinks tests every segment against every other one, across rings and parts.
-	const crossing = kinks(boundary).features[0];
+	// kinks tests every segment against every other one, across rings and parts. With
+	// allowTouching (zones, whose shapes come out of a polygon clipper), rings that only touch at a
+	// corner are fine, as OGC allows: only points that are no corner of the shape count.
+	const corners = allowTouching ? new Set(polygons.flat(2).map((p) => `${p[0]},${p[1]}`)) : null;
+	const crossing = kinks(boundary).features.find((f) => !corners?.has(`${f.geometry.coordinates[0]},${f.geometry.coordinates[1]}`));
 	if (crossing) return { error: `the boundary crosses itself near ${fmt(crossing.geometry.coordinates)}` };
 	for (const [p, rings] of polygons.entries()) {
 		const outer: Polygon = { type: 'Polygon', coordinates: [rings[0]] };
@@ -75,7 +78,10 @@ export function checkBoundary(input: unknown): BoundaryCheck {
 			}
 		}
 		for (const [q, other] of polygons.entries()) {
-			if (q !== p && booleanPointInPolygon(other[0][0], withHoles)) {
+			const inside = allowTouching
+				? other[0].some((corner) => booleanPointInPolygon(corner, withHoles, { ignoreBoundary: true }))
+				: booleanPointInPolygon(other[0][0], withHoles);
+			if (q !== p && inside) {
 				return { error: `part ${q + 1} lies inside part ${p + 1}; draw it as a hole instead` };
 			}
 		}

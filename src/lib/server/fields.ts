@@ -7,6 +7,7 @@ import { record } from '$lib/server/audit';
 import { fieldGeometryColumns } from '$lib/geo/field-geometry';
 import { checkBoundary } from '$lib/geo/fields-boundary';
 import { fitGrid } from '$lib/geo/fields-grid';
+import { fitZonesToBoundary } from '$lib/server/zones/zones';
 
 export type { Field };
 
@@ -199,7 +200,7 @@ export async function updateBoundary(
 	assertMayEdit(actor);
 	const checked = checkBoundary(boundary);
 	if ('error' in checked) return { error: `Invalid boundary: ${checked.error}.` };
-	type Outcome = { error: string } | { before: number; shift: number[] } | null;
+	type Outcome = { error: string } | { before: number; shift: number[]; zonesCut: Awaited<ReturnType<typeof fitZonesToBoundary>> } | null;
 	const result = await db.transaction(async (tx): Promise<Outcome> => {
 		const [field] = await tx
 			.select()
@@ -240,7 +241,9 @@ export async function updateBoundary(
 				updatedAt: sql`now()`
 			})
 			.where(eq(fields.id, id));
-		return { before: field.areaM2, shift: [fitted.shiftCols, fitted.shiftRows] };
+		// Zones stay inside their field, so the zone table still adds up to it.
+		const zonesCut = await fitZonesToBoundary(tx, id, checked.boundary as Polygon | MultiPolygon, field.gridProj);
+		return { before: field.areaM2, shift: [fitted.shiftCols, fitted.shiftRows], zonesCut };
 	});
 	if (!result || 'error' in result) return result;
 	await record({
@@ -249,7 +252,7 @@ export async function updateBoundary(
 		action: 'field.boundary_edited',
 		targetType: 'field',
 		targetId: id,
-		detail: { areaM2Before: result.before, areaM2After: checked.areaM2, gridShiftColsRows: result.shift }
+		detail: { areaM2Before: result.before, areaM2After: checked.areaM2, gridShiftColsRows: result.shift, ...(result.zonesCut.length ? { zonesCut: result.zonesCut } : {}) }
 	});
 	return { ok: true, areaM2: checked.areaM2 };
 }

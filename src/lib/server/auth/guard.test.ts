@@ -35,6 +35,16 @@ describe('notes (the team’s working notes)', () => {
 	});
 });
 
+describe('zones', () => {
+	test('managers and agronomists make and change zones; everyone sees them, landlords their granted fields', () => {
+		expect(may('manager', 'zones.edit')).toBe(true);
+		expect(may('agronomist', 'zones.edit')).toBe(true);
+		expect(may('operator', 'zones.edit')).toBe(false);
+		expect(may('landlord', 'zones.edit')).toBe(false);
+		for (const role of ['manager', 'agronomist', 'operator', 'landlord'] as const) expect(may(role, 'zones.view')).toBe(true);
+	});
+});
+
 describe('the guard against the database', () => {
 	test('no user: a page redirects to sign-in, an API answers 401', async () => {
 		expect(() => requireUser(eventFor(null, {}, '/x'))).toThrow();

@@ -46,7 +46,10 @@ export const abilities = {
 	// them (not even on granted fields). Authors edit and delete their own; managers any.
 	'notes.view': ['manager', 'agronomist', 'operator'],
 	'notes.write': ['manager', 'agronomist'],
-	'notes.moderate': ['manager']
+	'notes.moderate': ['manager'],
+	// Zones of a field: landlords see those of their granted fields, read-only.
+	'zones.view': ['manager', 'agronomist', 'operator', 'landlord'],
+	'zones.edit': ['manager', 'agronomist']
 } as const satisfies Record<string, readonly Role[]>;
 export type Ability = keyof typeof abilities;
 

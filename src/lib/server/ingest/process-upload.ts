@@ -5,7 +5,7 @@
 import { and, eq, sql } from 'drizzle-orm';
 import type { MultiPolygon, Polygon } from 'geojson';
 import { cleanFixes, selectFixes } from '$lib/compute/clean-fixes';
-import { computeCoverage } from '$lib/compute/coverage';
+import { computeCoverage, type CoverageInput } from '$lib/compute/coverage';
 import { assessQuality } from '$lib/compute/quality';
 import { splitByField } from '$lib/compute/split-by-field';
 import type { CleaningReport, FixColumns, GridSpec } from '$lib/compute/types';
@@ -73,13 +73,12 @@ function gridOf(f: FieldRow): GridSpec {
 	};
 }
 
-/** Coverage of one application's fixes over its field, per cell and in total. */
-export function computeApplication(
+/** The engine's input for an application's fixes on its field's grid; zones are drawn from the same. */
+export function coverageInput(
 	field: FieldRow,
 	fixes: FixColumns,
-	machine: { boomWidthM: number; nozzleCount: number; nozzleSpacingM: number },
-	carrierRateLPerM2: number
-) {
+	machine: { boomWidthM: number; nozzleCount: number; nozzleSpacingM: number }
+): CoverageInput {
 	const grid = gridOf(field);
 	const boundary = field.boundary as Polygon | MultiPolygon;
 	const zone = utmZoneFor(boundary);
@@ -91,11 +90,20 @@ export function computeApplication(
 		starts = new Uint32Array(flags.reduce((n, v) => n + v, 0));
 		for (let i = 0, j = 0; i < fixes.count; i++) if (flags[i]) starts[j++] = i;
 	}
-	return computeCoverage(
-		{ x, y, fixes, starts, boom: machine, scaleFactor, grid },
-		projectRings(grid.proj, boundary),
-		{ defaultRateLPerM2: carrierRateLPerM2, windowToFixes: true }
-	);
+	return { x, y, fixes, starts, boom: machine, scaleFactor, grid };
+}
+
+/** Coverage of one application's fixes over its field, per cell and in total. */
+export function computeApplication(
+	field: FieldRow,
+	fixes: FixColumns,
+	machine: { boomWidthM: number; nozzleCount: number; nozzleSpacingM: number },
+	carrierRateLPerM2: number
+) {
+	return computeCoverage(coverageInput(field, fixes, machine), projectRings(field.gridProj, field.boundary as Polygon | MultiPolygon), {
+		defaultRateLPerM2: carrierRateLPerM2,
+		windowToFixes: true
+	});
 }
 
 async function recomputeApplication(tx: Tx, applicationId: string, field: FieldRow) {

@@ -8,3 +8,4 @@ export * from './results';
 export * from './map-tiles';
 export * from './records';
 export * from './notes';
+export * from './zones';

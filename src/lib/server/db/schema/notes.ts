@@ -2,6 +2,7 @@ import { doublePrecision, index, integer, pgTable, text, timestamp, uuid } from 
 import { users } from './auth';
 import { farms } from './farms';
 import { fields } from './fields';
+import { zones } from './zones';
 
 /**
  * A note pinned to a point of the farm for a season: the team's working notes (agronomists and
@@ -16,9 +17,8 @@ export const notes = pgTable(
 			.references(() => farms.id, { onDelete: 'cascade' }),
 		/** The field the point lay in when the note was pinned; null outside every field (a yard, a gate). */
 		fieldId: uuid().references(() => fields.id, { onDelete: 'set null' }),
-		// No foreign key yet: zones are built on another branch. When both land, the integrator adds
-		// `references(() => zones.id, { onDelete: 'set null' })` and the 'pin to a zone' option.
-		zoneId: uuid(),
+		/** The zone the note is pinned to, if any; a deleted zone leaves the note on its point. */
+		zoneId: uuid().references(() => zones.id, { onDelete: 'set null' }),
 		season: integer().notNull(),
 		/** WGS84 degrees, the map's [lng, lat] order. */
 		lng: doublePrecision().notNull(),

@@ -8,14 +8,16 @@ import * as fields from '$lib/server/fields';
 import * as mapData from '$lib/server/map/data';
 import * as notes from '$lib/server/notes';
 import { addNote, deleteNote, editNote } from '$lib/server/note-actions';
+import { zoneFeatures } from '$lib/server/zones/zones';
 import type { Actions, PageServerLoad } from './$types';
 
 // The page loads what frames the map and its seasons; figures and cells come from the map's JSON
 // and tile APIs in the browser, so changing the season or the threshold does not reload the page.
 export const load: PageServerLoad = async (event) => {
 	const actor = await requireRole(event, 'map');
-	const [fieldMap, [farm], meta, farmNotes] = await Promise.all([
+	const [fieldMap, zoneMap, [farm], meta, farmNotes] = await Promise.all([
 		fields.featureCollection(actor),
+		zoneFeatures(actor),
 		db.select({ threshold: farms.hotspotThresholdPercent }).from(farms).where(eq(farms.id, actor.farm.id)),
 		mapData.meta(actor),
 		// Every season's notes: a farm has tens a season, and switching seasons then needs no request.
@@ -23,6 +25,7 @@ export const load: PageServerLoad = async (event) => {
 	]);
 	return {
 		fieldMap,
+		zoneMap,
 		meta,
 		thresholdPercent: farm.threshold,
 		canSetThreshold: may(actor.role, 'hotspots.set'),

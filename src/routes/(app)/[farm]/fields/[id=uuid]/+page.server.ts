@@ -6,6 +6,7 @@ import * as figures from '$lib/server/figures';
 import { fieldTrend, smallMultiples } from '$lib/server/field-trend';
 import * as notes from '$lib/server/notes';
 import { deleteNote, editNote } from '$lib/server/note-actions';
+import { zoneFeatures } from '$lib/server/zones/zones';
 import type { Actions, PageServerLoad } from './$types';
 
 async function fieldFigures(actor: Actor, fieldId: string) {
@@ -23,6 +24,8 @@ export const load: PageServerLoad = async (event) => {
 		field,
 		canEdit,
 		applicationCount: canEdit ? await fields.applicationCount(actor, field.id) : 0,
+		zoneMap: await zoneFeatures(actor, field.id),
+		canEditZones: may(actor.role, 'zones.edit'),
 		...(await fieldFigures(actor, field.id)),
 		trend,
 		smallMultiples: await smallMultiples(actor, field, trend.seasons.map((s) => s.season)),
