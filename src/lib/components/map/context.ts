@@ -32,3 +32,16 @@ export function boundsOf(geometries: Iterable<{ type: string; coordinates: unkno
 	for (const g of geometries) if (g) visit(g.coordinates);
 	return Number.isFinite(west) ? [west, south, east, north] : null;
 }
+
+/**
+ * Takes a layer component's layers (top first) and then its sources off the map, skipping what is
+ * already gone; when the map itself was removed first (the page was left), there is nothing to do.
+ */
+export function removeFromMap(map: MapLibreMap, layers: string[], sources: string[]): void {
+	try {
+		for (const layer of layers) if (map.getLayer(layer)) map.removeLayer(layer);
+		for (const source of sources) if (map.getSource(source)) map.removeSource(source);
+	} catch {
+		// The map was removed first: its layers and sources went with it.
+	}
+}
