@@ -318,3 +318,92 @@ test('roles and farms: operators see figures without money and change nothing, l
 	expect((await other.request.get(`${api(northFlat)}/export.zip`)).status()).toBe(404);
 	await otherContext.close();
 });
+
+test('notes pinned to a zone: written on the zone page, and on the map by placing them inside the zone', async ({ page, browser }) => {
+	test.setTimeout(120_000);
+	await clearZones('Railside');
+	// The zone is set up directly (drawing is tested above): the whole of Railside, so the centre
+	// of the field on the map lies in it.
+	const sql = postgres(dbUrl, { max: 1, onnotice: () => {} });
+	try {
+		await sql`insert into zones (farm_id, field_id, name, geometry, area_m_2, source)
+			select farm_id, id, 'Railside all', boundary, area_m_2, 'drawn' from fields where name = 'Railside'
+			and farm_id = (select id from farms where slug = 'tallowgrass')`;
+	} finally {
+		await sql.end();
+	}
+	const stamp = Date.now().toString(36);
+	await page.setViewportSize(viewports.desktop);
+	await signIn(page, people.agronomist);
+	const id = await fieldId(page, 'Railside');
+
+	// On the zone page: select the zone, Add note; it is listed with the zone.
+	await page.goto(`/tallowgrass/fields/${id}/zones`);
+	await page.getByTestId('zone-list').getByRole('button', { name: /Railside all/ }).click();
+	const zoneNotes = page.getByTestId('zone-notes');
+	await expect(zoneNotes).toContainText('No notes pinned to this zone.');
+	await zoneNotes.getByTestId('zone-add-note').click();
+	await expect(zoneNotes.getByTestId('note-zone-fixed')).toContainText('For zone Railside all');
+	await zoneNotes.getByLabel('Note').fill(`Scout the ballast edge before the first pass (${stamp})`);
+	await zoneNotes.getByRole('button', { name: 'Save note' }).click();
+	const card = zoneNotes.getByTestId('note');
+	await expect(card.getByTestId('note-body')).toHaveText(`Scout the ballast edge before the first pass (${stamp})`);
+	await expect(card.getByTestId('note-zone')).toHaveText('zone “Railside all”');
+	await expect(page.getByTestId('zone-list')).toContainText('1 note');
+	await page.screenshot({ path: 'tests/screenshots/zones-note-desktop.png', fullPage: true });
+
+	// On the map: a note placed inside the zone offers the zone; pinned to it, the card names it.
+	await page.goto('/tallowgrass/map');
+	await expect(page.locator('[data-testid="map"][data-map-ready="true"]')).toBeAttached({ timeout: 30_000 });
+	await page.getByRole('button', { name: 'Show Railside on the map' }).click();
+	await page.waitForTimeout(50);
+	await mapIdle(page);
+	await page.getByTestId('add-note').click();
+	const box = (await page.getByTestId('map').boundingBox())!;
+	await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2);
+	const form = page.getByTestId('note-add-form');
+	const pin = form.getByTestId('note-pin');
+	await expect(pin.getByLabel('This point')).toBeChecked();
+	await pin.getByLabel('Zone “Railside all”').check();
+	await form.getByLabel('Note').fill(`Foxtail along the siding (${stamp})`);
+	await page.screenshot({ path: 'tests/screenshots/map-note-zone-desktop.png' });
+	await form.getByRole('button', { name: 'Save note' }).click();
+	const mapCard = page.getByTestId('map-notes').getByTestId('note');
+	await expect(mapCard.getByTestId('note-body')).toHaveText(`Foxtail along the siding (${stamp})`);
+	await expect(mapCard.getByTestId('note-zone')).toHaveText('zone “Railside all”');
+
+	// Pinned to the point only again, by an edit; the zone page then lists one note.
+	await mapCard.getByRole('button', { name: 'Edit' }).click();
+	const edit = mapCard.getByTestId('note-edit-form');
+	await expect(edit.getByLabel('Zone “Railside all”')).toBeChecked();
+	await edit.getByLabel('This point').check();
+	await edit.getByRole('button', { name: 'Save changes' }).click();
+	await expect(mapCard.getByTestId('note-zone')).toHaveCount(0);
+	await page.goto(`/tallowgrass/fields/${id}/zones`);
+	await expect(page.getByTestId('zone-list')).toContainText('1 note');
+
+	// On a phone the zone page shows the zone's notes under its details.
+	await page.setViewportSize(viewports.phone);
+	await page.getByTestId('zone-list').getByRole('button', { name: /Railside all/ }).click();
+	await expect(page.getByTestId('zone-notes').getByTestId('note')).toHaveCount(1);
+	await page.getByTestId('zone-notes').scrollIntoViewIfNeeded();
+	await page.screenshot({ path: 'tests/screenshots/zones-note-phone.png' });
+
+	// Operators read zone notes but may not write them; landlords get none and may not write.
+	const zoneId = (await page.evaluate(async (url) => {
+		const r = await fetch(url);
+		return ((await r.json()) as { features: { id: string }[] }).features[0].id;
+	}, `/api/farms/tallowgrass/fields/${id}/zones/export.geojson`)) as string;
+	for (const who of [people.operator, people.landlord]) {
+		const context = await browser.newContext();
+		const p = await context.newPage();
+		await signIn(p, who);
+		const origin = new URL(p.url()).origin;
+		const refused = await p.request.post(`/tallowgrass/fields/${id}/zones?/noteAdd`, {
+			headers: { origin, accept: 'application/json', 'x-sveltekit-action': 'true' },
+			multipart: { body: 'Not mine to write', season: '2026', zone: zoneId }
+		});
+		expect(refused.status(), who).toBe(403);
+		await context.close();
+	}
+});

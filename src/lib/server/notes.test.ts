@@ -8,7 +8,7 @@ import { and, eq } from 'drizzle-orm';
 import sharp, { type Sharp } from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { db } from '$lib/server/db';
-import { auditLog, fields } from '$lib/server/db/schema';
+import { auditLog, fields, zones } from '$lib/server/db/schema';
 import type { Actor } from '$lib/server/auth/guard';
 import { join, makeFarm, makeUser, statusOf } from '$lib/server/testing/fixtures';
 import { fieldGeometryColumns } from '$lib/geo/field-geometry';
@@ -176,6 +176,105 @@ describe('notes', () => {
 		expect(s2025.length).toBeGreaterThan(0);
 		expect(s2025.every((n) => n.season === 2025)).toBe(true);
 		expect(await notes.list(a.manager, { seasons: [] })).toEqual([]);
+	});
+});
+
+describe('notes pinned to a zone', () => {
+	let westId: string;
+	let otherFarmZoneId: string;
+	// The west half of the invented square; areas are not what these tests are about.
+	const westHalf = { type: 'Polygon' as const, coordinates: [[[0, 0], [0.005, 0], [0.005, 0.01], [0, 0.01], [0, 0]]] };
+	const westPoint = { lng: 0.002, lat: 0.004 };
+	const eastPoint = { lng: 0.008, lat: 0.004 };
+
+	beforeAll(async () => {
+		const [west] = await db.insert(zones).values({ farmId: a.manager.farm.id, fieldId, name: 'West half', geometry: westHalf, areaM2: 1, source: 'drawn' }).returning();
+		westId = west.id;
+		const [otherField] = await db
+			.insert(fields)
+			.values({ farmId: outsider.farm.id, name: 'Elsewhere', ...fieldGeometryColumns({ type: 'Polygon', coordinates: [[[0, 0], [0.01, 0], [0.01, 0.01], [0, 0.01], [0, 0]]] }) })
+			.returning();
+		const [z] = await db.insert(zones).values({ farmId: outsider.farm.id, fieldId: otherField.id, name: 'Theirs', geometry: westHalf, areaM2: 1, source: 'drawn' }).returning();
+		otherFarmZoneId = z.id;
+	});
+
+	const created = async (over: Partial<notes.NoteInput>) => {
+		const r = await notes.create(a.agronomist, input(over));
+		if (!('note' in r)) throw new Error(r.problem.message);
+		return r.note;
+	};
+
+	it('a note placed in a zone may be pinned to it: zone named, field set, offered as the zone here', async () => {
+		const n = await created({ ...westPoint, zoneId: westId, body: 'Waterhemp came back along the west side.' });
+		expect(n).toMatchObject({ zoneId: westId, zoneName: 'West half', fieldId, fieldName: 'Invented square', lng: westPoint.lng, lat: westPoint.lat });
+		expect(n.zonesHere).toEqual([{ id: westId, name: 'West half' }]);
+		const [entry] = await db.select().from(auditLog).where(and(eq(auditLog.action, 'note.created'), eq(auditLog.targetId, n.id)));
+		expect(entry.detail).toMatchObject({ zone: { id: westId, name: 'West half' } });
+	});
+
+	it('a zone note written without a point (from the zone page) is pinned at a point inside the zone', async () => {
+		const n = await created({ lng: NaN, lat: NaN, zoneId: westId, body: 'Plan a pre-emergence pass here.' });
+		expect(n.zoneId).toBe(westId);
+		expect(n.fieldId).toBe(fieldId);
+		expect(n.lng).toBeGreaterThan(0);
+		expect(n.lng).toBeLessThan(0.005);
+		expect(n.lat).toBeGreaterThan(0);
+		expect(n.lat).toBeLessThan(0.01);
+	});
+
+	it('a point outside the zone, another farm’s zone or a malformed id: a sentence, and nothing stored', async () => {
+		const before = (await notes.list(a.manager)).length;
+		const problem = async (over: Partial<notes.NoteInput>) => {
+			const r = await notes.create(a.agronomist, input(over));
+			return 'problem' in r ? r.problem : null;
+		};
+		expect(await problem({ ...eastPoint, zoneId: westId })).toEqual({
+			field: 'zone',
+			message: 'The note’s point lies outside zone “West half”; place it inside the zone, or pin it to the point only.'
+		});
+		expect((await problem({ ...westPoint, zoneId: otherFarmZoneId }))?.message).toMatch(/^That zone is no longer in this farm/);
+		expect((await problem({ ...westPoint, zoneId: 'west' }))?.field).toBe('zone');
+		expect((await notes.list(a.manager)).length).toBe(before);
+	});
+
+	it('an edit pins to the point only or back to the zone, audited; a zone elsewhere is refused', async () => {
+		const n = await created({ ...westPoint, zoneId: westId, body: 'Check the headland.' });
+		const unpinned = await notes.update(a.agronomist, n.id, { body: n.body, season: n.season, photo: null, zoneId: null });
+		expect(unpinned && 'note' in unpinned && unpinned.note).toMatchObject({ zoneId: null, zoneName: null, zonesHere: [{ id: westId, name: 'West half' }] });
+		const kept = await notes.update(a.agronomist, n.id, { body: 'Check the headland again.', season: n.season, photo: null });
+		expect(kept && 'note' in kept && kept.note.zoneId).toBeNull();
+		const repinned = await notes.update(a.manager, n.id, { body: n.body, season: n.season, photo: null, zoneId: westId });
+		expect(repinned && 'note' in repinned && repinned.note.zoneName).toBe('West half');
+		const edits = await db.select().from(auditLog).where(and(eq(auditLog.action, 'note.edited'), eq(auditLog.targetId, n.id)));
+		expect(edits.map((e) => (e.detail as { zone?: { to: string | null } }).zone?.to)).toEqual(expect.arrayContaining([null, westId]));
+		const outside = await created({ ...eastPoint, body: 'East side, no zone.' });
+		expect(outside.zonesHere).toEqual([]);
+		const refused = await notes.update(a.agronomist, outside.id, { body: outside.body, season: outside.season, photo: null, zoneId: westId });
+		expect(refused && 'problem' in refused && refused.problem.field).toBe('zone');
+	});
+
+	it('the zone filter lists its notes only; deleting the zone leaves its notes on their points', async () => {
+		const [spare] = await db
+			.insert(zones)
+			.values({ farmId: a.manager.farm.id, fieldId, name: 'East half', geometry: { type: 'Polygon', coordinates: [[[0.005, 0], [0.01, 0], [0.01, 0.01], [0.005, 0.01], [0.005, 0]]] }, areaM2: 1, source: 'drawn' })
+			.returning();
+		const n = await created({ ...eastPoint, zoneId: spare.id, body: 'Thistle in the east half.' });
+		expect((await notes.list(a.manager, { zoneId: spare.id })).map((x) => x.id)).toEqual([n.id]);
+		expect((await notes.list(a.manager, { zoneId: westId })).every((x) => x.zoneId === westId)).toBe(true);
+		await db.delete(zones).where(eq(zones.id, spare.id));
+		expect(await notes.get(a.manager, n.id)).toMatchObject({ zoneId: null, zoneName: null, lng: eastPoint.lng, fieldId });
+	});
+
+	it('the form: no `zone` leaves an edit’s pin alone, an empty one pins to the point only', async () => {
+		const form = (entries: Record<string, string>) => {
+			const f = new FormData();
+			for (const [k, v] of Object.entries(entries)) f.set(k, v);
+			return f;
+		};
+		expect((await notes.changeFrom(form({ body: 'x', season: '2025' }))).zoneId).toBeUndefined();
+		expect((await notes.changeFrom(form({ body: 'x', season: '2025', zone: '' }))).zoneId).toBeNull();
+		expect((await notes.inputFrom(form({ body: 'x', season: '2025', zone: westId }))).zoneId).toBe(westId);
+		expect((await notes.inputFrom(form({ body: 'x', season: '2025' }))).zoneId).toBeNull();
 	});
 });
 

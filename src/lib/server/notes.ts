@@ -1,12 +1,14 @@
-// Notes pinned to a point of the farm for a season, with an optional photo. Scoped by farm;
+// Notes pinned to a point of the farm, or to a zone, for a season, with an optional photo. A
+// zone note keeps a point too (where it was placed, or a point inside the zone) so every note
+// has a pin on the map; the zone is what it is about. Scoped by farm;
 // landlords are refused outright (notes are the team's working notes, see guard.ts). Authors
 // edit and delete their own notes, managers any; every change is audited.
 import { error } from '@sveltejs/kit';
-import { booleanPointInPolygon } from '@turf/turf';
+import { booleanPointInPolygon, pointOnFeature } from '@turf/turf';
 import { and, desc, eq, inArray, ne, sql } from 'drizzle-orm';
 import sharp from 'sharp';
 import { db } from '$lib/server/db';
-import { fields, notes, users, type Note } from '$lib/server/db/schema';
+import { fields, notes, users, zones, type Note, type Zone } from '$lib/server/db/schema';
 import { may, type Actor } from '$lib/server/auth/guard';
 import { record } from '$lib/server/audit';
 import { putPhoto, readPhoto, removePhoto } from '$lib/server/storage/photo-store';
@@ -16,8 +18,11 @@ export type NoteView = {
 	id: string;
 	fieldId: string | null;
 	fieldName: string | null;
-	/** Set once notes can be pinned to zones (see the schema's comment); null until then. */
+	/** The zone the note is pinned to, or null for a note about its point only. */
 	zoneId: string | null;
+	zoneName: string | null;
+	/** Zones of the farm whose shape holds the note's point: what an edit may pin it to. */
+	zonesHere: ZoneChoice[];
 	season: number;
 	lng: number;
 	lat: number;
@@ -29,6 +34,8 @@ export type NoteView = {
 	createdAt: string;
 	updatedAt: string;
 };
+
+export type ZoneChoice = { id: string; name: string };
 
 export const SEASON_MIN = 1990;
 export const SEASON_MAX = 2100;
@@ -56,6 +63,7 @@ const columns = {
 	fieldId: notes.fieldId,
 	fieldName: fields.name,
 	zoneId: notes.zoneId,
+	zoneName: zones.name,
 	season: notes.season,
 	lng: notes.lng,
 	lat: notes.lat,
@@ -68,16 +76,38 @@ const columns = {
 };
 
 function select() {
-	return db.select(columns).from(notes).leftJoin(fields, eq(fields.id, notes.fieldId)).leftJoin(users, eq(users.id, notes.authorId));
+	return db
+		.select(columns)
+		.from(notes)
+		.leftJoin(fields, eq(fields.id, notes.fieldId))
+		.leftJoin(zones, eq(zones.id, notes.zoneId))
+		.leftJoin(users, eq(users.id, notes.authorId));
+}
+
+type ZoneShape = { id: string; name: string; fieldId: string; geometry: Zone['geometry'] };
+
+async function farmZones(actor: Actor): Promise<ZoneShape[]> {
+	return db
+		.select({ id: zones.id, name: zones.name, fieldId: zones.fieldId, geometry: zones.geometry })
+		.from(zones)
+		.where(eq(zones.farmId, actor.farm.id))
+		.orderBy(zones.name);
+}
+
+/** The zones whose shape holds the point (zones of a field do not overlap, so one per field at most). */
+function zonesAt(all: ZoneShape[], lng: number, lat: number): ZoneChoice[] {
+	return all.filter((z) => booleanPointInPolygon([lng, lat], z.geometry)).map((z) => ({ id: z.id, name: z.name }));
 }
 type Row = Awaited<ReturnType<typeof select>>[number];
 
-function view(actor: Actor, r: Row): NoteView {
+function view(actor: Actor, r: Row, farmZoneShapes: ZoneShape[]): NoteView {
 	return {
 		id: r.id,
 		fieldId: r.fieldId,
 		fieldName: r.fieldName,
 		zoneId: r.zoneId,
+		zoneName: r.zoneName,
+		zonesHere: zonesAt(farmZoneShapes, r.lng, r.lat),
 		season: r.season,
 		lng: r.lng,
 		lat: r.lat,
@@ -91,20 +121,25 @@ function view(actor: Actor, r: Row): NoteView {
 	};
 }
 
-/** The farm's notes, newest first; optionally of some seasons or one field. */
-export async function list(actor: Actor, filter: { seasons?: number[]; fieldId?: string } = {}): Promise<NoteView[]> {
+/** The farm's notes, newest first; optionally of some seasons, one field or one zone. */
+export async function list(actor: Actor, filter: { seasons?: number[]; fieldId?: string; zoneId?: string } = {}): Promise<NoteView[]> {
 	requireView(actor);
 	if (filter.fieldId !== undefined && !uuidPattern.test(filter.fieldId)) return [];
-	const rows = await select()
-		.where(
-			and(
-				eq(notes.farmId, actor.farm.id),
-				filter.seasons ? (filter.seasons.length ? inArray(notes.season, filter.seasons) : sql`false`) : undefined,
-				filter.fieldId ? eq(notes.fieldId, filter.fieldId) : undefined
+	if (filter.zoneId !== undefined && !uuidPattern.test(filter.zoneId)) return [];
+	const [rows, shapes] = await Promise.all([
+		select()
+			.where(
+				and(
+					eq(notes.farmId, actor.farm.id),
+					filter.seasons ? (filter.seasons.length ? inArray(notes.season, filter.seasons) : sql`false`) : undefined,
+					filter.fieldId ? eq(notes.fieldId, filter.fieldId) : undefined,
+					filter.zoneId ? eq(notes.zoneId, filter.zoneId) : undefined
+				)
 			)
-		)
-		.orderBy(desc(notes.season), desc(notes.createdAt));
-	return rows.map((r) => view(actor, r));
+			.orderBy(desc(notes.season), desc(notes.createdAt)),
+		farmZones(actor)
+	]);
+	return rows.map((r) => view(actor, r, shapes));
 }
 
 async function row(actor: Actor, id: string) {
@@ -117,7 +152,7 @@ export async function get(actor: Actor, id: string): Promise<NoteView | null> {
 	requireView(actor);
 	if (!uuidPattern.test(id)) return null;
 	const [r] = await select().where(and(eq(notes.farmId, actor.farm.id), eq(notes.id, id)));
-	return r ? view(actor, r) : null;
+	return r ? view(actor, r, await farmZones(actor)) : null;
 }
 
 /** The farm's field whose boundary holds the point, or null (a yard, a gate, a track). */
@@ -127,14 +162,34 @@ async function fieldAt(actor: Actor, lng: number, lat: number): Promise<string |
 }
 
 export type PhotoUpload = { fileName: string; bytes: Uint8Array };
-export type NoteInput = { season: number; lng: number; lat: number; body: string; photo: PhotoUpload | null };
-export type Problem = { field: 'body' | 'season' | 'position' | 'photo' | 'note'; message: string };
+/** A position may be left out (NaN) when a zone is given: the note is then pinned inside the zone. */
+export type NoteInput = { season: number; lng: number; lat: number; body: string; photo: PhotoUpload | null; zoneId?: string | null };
+export type Problem = { field: 'body' | 'season' | 'position' | 'photo' | 'zone' | 'note'; message: string };
 type Stored = { photoSha256: string; photoType: string; photoBytes: number; thumbSha256: string };
 
 function checkSeason(season: number): Problem | null {
 	return Number.isInteger(season) && season >= SEASON_MIN && season <= SEASON_MAX
 		? null
 		: { field: 'season', message: `The season must be a year from ${SEASON_MIN} to ${SEASON_MAX}.` };
+}
+
+const zoneGone = { field: 'zone', message: 'That zone is no longer in this farm (it may have just been deleted); pin the note to its point instead.' } as const;
+
+/**
+ * The zone a note is to be pinned to, checked against the farm and the note's point: a note
+ * pinned to a zone stands inside it, so its pin on the map lies in the zone it speaks of.
+ */
+async function zoneFor(actor: Actor, zoneId: string, at: { lng: number; lat: number } | null): Promise<ZoneShape | Problem> {
+	if (!uuidPattern.test(zoneId)) return zoneGone;
+	const [zone] = await db
+		.select({ id: zones.id, name: zones.name, fieldId: zones.fieldId, geometry: zones.geometry })
+		.from(zones)
+		.where(and(eq(zones.farmId, actor.farm.id), eq(zones.id, zoneId)));
+	if (!zone) return zoneGone;
+	if (at && !booleanPointInPolygon([at.lng, at.lat], zone.geometry)) {
+		return { field: 'zone', message: `The note’s point lies outside zone “${zone.name}”; place it inside the zone, or pin it to the point only.` };
+	}
+	return zone;
 }
 
 /** Stores the photo and its thumbnail; a problem when the bytes are no usable image. */
@@ -180,19 +235,28 @@ export async function create(actor: Actor, input: NoteInput): Promise<{ note: No
 	if (bodyIssue) return { problem: { field: 'body', message: bodyIssue } };
 	const seasonIssue = checkSeason(input.season);
 	if (seasonIssue) return { problem: seasonIssue };
-	if (!(Math.abs(input.lng) <= 180 && Math.abs(input.lat) <= 90)) {
+	const placed = Math.abs(input.lng) <= 180 && Math.abs(input.lat) <= 90;
+	let zone: ZoneShape | null = null;
+	if (input.zoneId) {
+		const found = await zoneFor(actor, input.zoneId, placed ? input : null);
+		if ('field' in found) return { problem: found };
+		zone = found;
+	}
+	if (!placed && !zone) {
 		return { problem: { field: 'position', message: 'Pick the note’s place on the map (longitude −180 to 180, latitude −90 to 90).' } };
 	}
+	// A zone note made without a point (from the zone's own page) stands at a point inside the zone.
+	const [lng, lat] = placed ? [input.lng, input.lat] : pointOnFeature(zone!.geometry).geometry.coordinates;
 	let stored: Stored | null = null;
 	if (input.photo) {
 		const result = await storePhoto(input.photo);
 		if ('field' in result) return { problem: result };
 		stored = result;
 	}
-	const fieldId = await fieldAt(actor, input.lng, input.lat);
+	const fieldId = zone ? zone.fieldId : await fieldAt(actor, lng, lat);
 	const [note] = await db
 		.insert(notes)
-		.values({ farmId: actor.farm.id, fieldId, season: input.season, lng: input.lng, lat: input.lat, body, authorId: actor.user.id, ...stored })
+		.values({ farmId: actor.farm.id, fieldId, zoneId: zone?.id ?? null, season: input.season, lng, lat, body, authorId: actor.user.id, ...stored })
 		.returning({ id: notes.id });
 	await record({
 		farmId: actor.farm.id,
@@ -200,12 +264,13 @@ export async function create(actor: Actor, input: NoteInput): Promise<{ note: No
 		action: 'note.created',
 		targetType: 'note',
 		targetId: note.id,
-		detail: { season: input.season, fieldId, lng: input.lng, lat: input.lat, photo: stored ? { sha256: stored.photoSha256, bytes: stored.photoBytes } : null }
+		detail: { season: input.season, fieldId, zone: zone ? { id: zone.id, name: zone.name } : null, lng, lat, photo: stored ? { sha256: stored.photoSha256, bytes: stored.photoBytes } : null }
 	});
 	return { note: (await get(actor, note.id))! };
 }
 
-export type NoteChange = { body: string; season: number; photo: PhotoUpload | 'remove' | null };
+/** zoneId: a zone to pin to, null to pin to the point only, undefined to leave as it is. */
+export type NoteChange = { body: string; season: number; photo: PhotoUpload | 'remove' | null; zoneId?: string | null };
 
 /** null when there is no such note in the farm; 403 when the actor may not change it. */
 export async function update(actor: Actor, id: string, change: NoteChange): Promise<{ note: NoteView } | { problem: Problem } | null> {
@@ -218,6 +283,17 @@ export async function update(actor: Actor, id: string, change: NoteChange): Prom
 	if (bodyIssue) return { problem: { field: 'body', message: bodyIssue } };
 	const seasonIssue = checkSeason(change.season);
 	if (seasonIssue) return { problem: seasonIssue };
+	let zoneId = note.zoneId;
+	let zoneName: string | null = null;
+	if (change.zoneId !== undefined && change.zoneId !== note.zoneId) {
+		if (change.zoneId === null) zoneId = null;
+		else {
+			const found = await zoneFor(actor, change.zoneId, note);
+			if ('field' in found) return { problem: found };
+			zoneId = found.id;
+			zoneName = found.name;
+		}
+	}
 	let photo: Partial<Stored> | { photoSha256: null; photoType: null; photoBytes: null; thumbSha256: null } = {};
 	if (change.photo === 'remove') photo = { photoSha256: null, photoType: null, photoBytes: null, thumbSha256: null };
 	else if (change.photo) {
@@ -225,12 +301,13 @@ export async function update(actor: Actor, id: string, change: NoteChange): Prom
 		if ('field' in result) return { problem: result };
 		photo = result;
 	}
-	await db.update(notes).set({ body, season: change.season, ...photo, updatedAt: sql`now()` }).where(eq(notes.id, id));
+	await db.update(notes).set({ body, season: change.season, zoneId, ...photo, updatedAt: sql`now()` }).where(eq(notes.id, id));
 	const photoChanged = 'photoSha256' in photo && photo.photoSha256 !== note.photoSha256;
 	if (photoChanged) await dropPhotoFiles(note.photoSha256, note.thumbSha256, id);
 	const changed: Record<string, unknown> = {};
 	if (body !== note.body) changed.body = { from: note.body, to: body };
 	if (change.season !== note.season) changed.season = { from: note.season, to: change.season };
+	if (zoneId !== note.zoneId) changed.zone = { from: note.zoneId, to: zoneId, name: zoneName };
 	if (photoChanged) changed.photo = { from: note.photoSha256, to: photo.photoSha256 ?? null };
 	if (Object.keys(changed).length) {
 		await record({
@@ -260,7 +337,7 @@ export async function remove(actor: Actor, id: string): Promise<{ body: string }
 		targetType: 'note',
 		targetId: id,
 		// What was deleted stays readable in the audit log; the photo's bytes do not.
-		detail: { season: note.season, fieldId: note.fieldId, lng: note.lng, lat: note.lat, body: note.body, authorId: note.authorId, photo: note.photoSha256 }
+		detail: { season: note.season, fieldId: note.fieldId, zoneId: note.zoneId, lng: note.lng, lat: note.lat, body: note.body, authorId: note.authorId, photo: note.photoSha256 }
 	});
 	return { body: note.body };
 }
@@ -329,14 +406,23 @@ export async function inputFrom(form: FormData): Promise<NoteInput> {
 		lng: numberFrom(form, 'lng'),
 		lat: numberFrom(form, 'lat'),
 		body: String(form.get('body') ?? ''),
-		photo: await photoFrom(form)
+		photo: await photoFrom(form),
+		zoneId: zoneFrom(form) ?? null
 	};
+}
+
+/** The form's `zone`: absent leaves the pin as it is, '' pins to the point only. */
+function zoneFrom(form: FormData): string | null | undefined {
+	if (!form.has('zone')) return undefined;
+	const raw = String(form.get('zone')).trim();
+	return raw === '' ? null : raw;
 }
 
 export async function changeFrom(form: FormData): Promise<NoteChange> {
 	return {
 		season: numberFrom(form, 'season'),
 		body: String(form.get('body') ?? ''),
-		photo: form.get('removePhoto') === 'on' ? 'remove' : await photoFrom(form)
+		photo: form.get('removePhoto') === 'on' ? 'remove' : await photoFrom(form),
+		zoneId: zoneFrom(form)
 	};
 }

@@ -5,6 +5,8 @@ import { fieldSeasons } from '$lib/server/zones/hotspots';
 import { fieldZoneSummary, ZoneFiguresProblem } from '$lib/server/zones/summary';
 import { createZones, removeZone, reshapeZone, updateZone, zoneFeatures, listZones } from '$lib/server/zones/zones';
 import { parseTargetRate } from '$lib/server/zones/forms';
+import * as notes from '$lib/server/notes';
+import { addNote, deleteNote, editNote } from '$lib/server/note-actions';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -12,7 +14,13 @@ export const load: PageServerLoad = async (event) => {
 	const field = await fields.get(actor, event.params.id);
 	if (!field) error(404, 'No such field in this farm.');
 	const seasonParam = Number(event.url.searchParams.get('season'));
-	const [zoneList, zoneMap, seasons] = await Promise.all([listZones(actor, field.id), zoneFeatures(actor, field.id), fieldSeasons(actor, field.id)]);
+	const [zoneList, zoneMap, seasons, fieldNotes] = await Promise.all([
+		listZones(actor, field.id),
+		zoneFeatures(actor, field.id),
+		fieldSeasons(actor, field.id),
+		// Landlords may open zones but never the team's notes.
+		may(actor.role, 'notes.view') ? notes.list(actor, { fieldId: field.id }) : null
+	]);
 	const season = seasons.includes(seasonParam) ? seasonParam : seasons[0];
 	// Zone figures may need drawing from the stored fixes: the page comes first, the table follows.
 	const summary = fieldZoneSummary(actor, field.id, season).then(
@@ -38,6 +46,8 @@ export const load: PageServerLoad = async (event) => {
 		seasons,
 		season: season ?? null,
 		canEdit: may(actor.role, 'zones.edit'),
+		notes: fieldNotes?.filter((n) => n.zoneId !== null) ?? null,
+		canWriteNotes: may(actor.role, 'notes.write'),
 		canSeeField: may(actor.role, 'zones.edit') || actor.role === 'operator',
 		summary
 	};
@@ -48,6 +58,9 @@ function text(data: FormData, key: string) {
 }
 
 export const actions: Actions = {
+	noteAdd: addNote,
+	noteEdit: editNote,
+	noteDelete: deleteNote,
 	create: async (event) => {
 		const actor = await requireRole(event, 'zones.edit');
 		const data = await event.request.formData();
