@@ -78,7 +78,8 @@ CONF
 start() {
 	if is_running; then return 0; fi
 	[ -f "$datadir/PG_VERSION" ] || init_cluster
-	if ! as_pg "$bin/pg_ctl" -D "$datadir" -l "$logfile" -w -t 60 start >/dev/null; then
+	# The port is given at every start, so PGPORT also moves a cluster made with another port.
+	if ! as_pg "$bin/pg_ctl" -D "$datadir" -l "$logfile" -w -t 60 -o "-p $port" start >/dev/null; then
 		echo "db: PostgreSQL failed to start; its log is $logfile:" >&2
 		tail -n 20 "$logfile" >&2 || true
 		exit 1

@@ -9,3 +9,4 @@ export * from './map-tiles';
 export * from './records';
 export * from './notes';
 export * from './zones';
+export * from './mail';
