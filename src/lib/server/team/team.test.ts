@@ -67,6 +67,24 @@ describe('invitations', () => {
 		expect(await invite(actor, { email: inv.email, role: 'operator' })).toMatchObject({ ok: false, status: 409 });
 	});
 
+	it('when the mail cannot be sent the invitation is kept and the link comes back to pass on', async () => {
+		const { actor } = await farmWithManager();
+		const email = uniqueEmail('offline');
+		const saved = process.env.SMTP_URL;
+		process.env.SMTP_URL = 'smtp://127.0.0.1:9'; // discard port: nothing listens
+		let r: Awaited<ReturnType<typeof invite>>;
+		try {
+			r = await invite(actor, { email, role: 'operator' });
+		} finally {
+			process.env.SMTP_URL = saved;
+		}
+		expect(r).toMatchObject({ ok: true, mailed: false, mailProblem: 'The mail server did not take the message.' });
+		if (!r.ok) throw new Error();
+		const token = tokenFrom(r.link);
+		expect(await lookupInvitation(token)).toMatchObject({ state: 'open', invitation: { email: email.toLowerCase(), role: 'operator' } });
+		expect((await listPending(actor.farm.id)).map((p) => p.email)).toEqual([email.toLowerCase()]);
+	});
+
 	it('a new account joins once; the same link then says it was used', async () => {
 		const { actor } = await farmWithManager();
 		const inv = await invited(actor, 'operator');
