@@ -75,6 +75,9 @@ const probes: Record<string, Probe[]> = {
 	'/[farm]/savings/csv': [{ url: () => '/tallowgrass/savings/csv?season=2026', about: 'farm' }],
 	'/[farm]/summaries': [{ url: () => '/tallowgrass/summaries', about: 'farm' }],
 	'/[farm]/team': [{ url: () => '/tallowgrass/team', about: 'farm' }],
+	'/[farm]/team/audit': [{ url: () => '/tallowgrass/team/audit?kind=fields', about: 'farm' }],
+	'/[farm]/team/audit/csv': [{ url: () => '/tallowgrass/team/audit/csv', about: 'farm' }],
+	'/invite/[token]': [{ url: () => '/invite/not-a-real-invitation-token', about: 'none' }],
 	'/[farm]/uploads': [{ url: () => '/tallowgrass/uploads', about: 'farm' }],
 	'/[farm]/uploads/[id=uuid]': [{ url: (i) => `/tallowgrass/uploads/${i.notGrantedUpload}`, about: 'not-granted' }],
 	'/api/farms/[farm]/exports/[kind]': [
@@ -255,7 +258,7 @@ test('an operator sees no prices and no team, on any route', async ({ browser })
 
 test('without a session, pages send you to sign in and APIs answer 401', async ({ browser }) => {
 	const anonymous = await as(browser, null);
-	const open = new Set(['/', '/login', '/logout', '/api/health']);
+	const open = new Set(['/', '/login', '/logout', '/api/health', '/invite/not-a-real-invitation-token']);
 	try {
 		for (const c of allCases()) {
 			const path = c.url.split('?')[0];

@@ -10,3 +10,4 @@ export * from './records';
 export * from './notes';
 export * from './zones';
 export * from './mail';
+export * from './invitations';
