@@ -4,9 +4,8 @@
 import { and, asc, eq } from 'drizzle-orm';
 import { error } from '@sveltejs/kit';
 import { db } from '$lib/server/db';
-import { fields, landlordGrants, memberships, users } from '$lib/server/db/schema';
+import { auditLog, fields, landlordGrants, memberships, users } from '$lib/server/db/schema';
 import { may, type Actor } from '$lib/server/auth/guard';
-import { auditLog } from '$lib/server/db/schema';
 import { grantChanges, type GrantChanges, type GrantTerms } from '$lib/summaries/grant-form';
 
 export type LandlordGrants = {
