@@ -7,7 +7,8 @@ import type { RequestHandler } from './$types';
 
 /** ?season=[&field=]: every field the viewer may see, or one, one A4 page each. */
 export const GET: RequestHandler = async (event) => {
-	const actor = await requireRole(event, 'summaries', { api: true });
+	// A download beside a page: signed out, it sends you to sign in and back, like the page.
+	const actor = await requireRole(event, 'summaries');
 	const seasons = await summarySeasons(actor);
 	const season = pickSeason(seasons, event.url.searchParams.get('season'));
 	if (season === null) error(404, 'No season has been logged on this farm yet.');
