@@ -101,11 +101,12 @@ async function fieldPage(doc: Doc, actor: Actor, field: Field, s: FieldSeasonSum
 	const top = doc.y;
 	figures.forEach((f, i) => {
 		const x = MARGIN + (i % 2) * colW;
-		const y = top + Math.floor(i / 2) * 26;
+		const y = top + Math.floor(i / 2) * 38;
 		write(doc, f.label, { x, y, size: 8, color: colors.loam500 });
-		write(doc, `${f.value}${f.note ? `  ${f.note}` : ''}`, { x, y: y + 10, size: 10, bold: false, width: colW - 8 });
+		write(doc, f.value, { x, y: y + 10, size: 10.5, bold: true, width: colW - 8 });
+		if (f.note) write(doc, f.note, { x, y: y + 23, size: 7.5, color: colors.loam500, width: colW - 8 });
 	});
-	doc.y = top + Math.ceil(figures.length / 2) * 26 + 4;
+	doc.y = top + Math.ceil(figures.length / 2) * 38;
 
 	// Products.
 	const products = summaryProducts(s, units, currency);

@@ -117,7 +117,7 @@ describe('season summary figures', () => {
 
 	it('the field summary page: 404 for a field not granted or in another farm; 403 for operators and agronomists', async () => {
 		const page = (actor: Actor, fieldId: string) =>
-			fieldPageLoad(eventFor(actor.user, { farm: actor.farm.slug, field: fieldId }, `/${actor.farm.slug}/summaries/${fieldId}?season=2025`) as never);
+			Promise.resolve(fieldPageLoad(eventFor(actor.user, { farm: actor.farm.slug, field: fieldId }, `/${actor.farm.slug}/summaries/${fieldId}?season=2025`) as never));
 		expect(await statusOf(page(actors.landlord, ids.nf))).toBe(200);
 		expect(await statusOf(page(actors.landlord, ids.cd))).toBe(404);
 		expect(await statusOf(page(actors.landlord, ids.elsewhere))).toBe(404);
@@ -232,7 +232,7 @@ describe('the PDF', () => {
 
 	it('one field by id; a field not granted or of another farm is 404; operators 403', async () => {
 		expect(await pdfText(actors.landlord, `season=2025&field=${ids.nf}`)).toHaveLength(1);
-		const status = (actor: Actor, q: string) => statusOf(pdfGet(eventFor(actor.user, { farm: actor.farm.slug }, `/${actor.farm.slug}/summaries/pdf?${q}`) as never));
+		const status = (actor: Actor, q: string) => statusOf(Promise.resolve(pdfGet(eventFor(actor.user, { farm: actor.farm.slug }, `/${actor.farm.slug}/summaries/pdf?${q}`) as never)));
 		expect(await status(actors.landlord, `season=2025&field=${ids.cd}`)).toBe(404);
 		expect(await status(actors.landlord, `season=2025&field=${ids.elsewhere}`)).toBe(404);
 		expect(await status(actors.manager, `season=2025&field=${ids.elsewhere}`)).toBe(404);
