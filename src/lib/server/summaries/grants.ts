@@ -43,18 +43,6 @@ export async function getLandlord(actor: Actor, userId: string): Promise<Landlor
 	return (await listLandlords(actor)).find((l) => l.userId === userId) ?? null;
 }
 
-/** The grants of one field, for the manager's preview of what each landlord sees. */
-export async function grantsOfField(actor: Actor, fieldId: string): Promise<{ userId: string; name: string; cropSharePercent: number | null }[]> {
-	assertManages(actor);
-	return db
-		.select({ userId: users.id, name: users.name, cropSharePercent: landlordGrants.cropSharePercent })
-		.from(landlordGrants)
-		.innerJoin(users, eq(users.id, landlordGrants.userId))
-		.innerJoin(memberships, and(eq(memberships.userId, landlordGrants.userId), eq(memberships.farmId, landlordGrants.farmId)))
-		.where(and(eq(landlordGrants.farmId, actor.farm.id), eq(landlordGrants.fieldId, fieldId), eq(memberships.role, 'landlord')))
-		.orderBy(asc(users.name));
-}
-
 /**
  * Makes a landlord's grants exactly `wanted` (fields checked against the farm's by the caller's
  * form parser): new grants inserted, changed leases updated, unticked fields revoked. Returns
