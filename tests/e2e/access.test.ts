@@ -74,6 +74,16 @@ const probes: Record<string, Probe[]> = {
 	'/[farm]/savings': [{ url: () => '/tallowgrass/savings', about: 'farm' }],
 	'/[farm]/savings/csv': [{ url: () => '/tallowgrass/savings/csv?season=2026', about: 'farm' }],
 	'/[farm]/summaries': [{ url: () => '/tallowgrass/summaries', about: 'farm' }],
+	'/[farm]/summaries/[field=uuid]': [
+		{ url: (i) => `/tallowgrass/summaries/${i.notGranted}?season=2026`, about: 'not-granted' },
+		{ url: (i) => `/tallowgrass/summaries/${i.otherFarmField}?season=2026`, about: 'not-granted' }
+	],
+	'/[farm]/summaries/landlords': [{ url: () => '/tallowgrass/summaries/landlords', about: 'farm' }],
+	'/[farm]/summaries/print': [{ url: () => '/tallowgrass/summaries/print?season=2026', about: 'farm' }],
+	'/[farm]/summaries/pdf': [
+		{ url: () => '/tallowgrass/summaries/pdf?season=2026', about: 'farm' },
+		{ url: (i) => `/tallowgrass/summaries/pdf?season=2026&field=${i.notGranted}`, about: 'not-granted' }
+	],
 	'/[farm]/team': [{ url: () => '/tallowgrass/team', about: 'farm' }],
 	'/[farm]/team/audit': [{ url: () => '/tallowgrass/team/audit?kind=fields', about: 'farm' }],
 	'/[farm]/team/audit/csv': [{ url: () => '/tallowgrass/team/audit/csv', about: 'farm' }],

@@ -39,8 +39,14 @@ export type PairTrend = {
 
 export type FieldTrend = { seasons: SeasonTrend[]; pairs: PairTrend[]; thresholdPercent: number };
 
-/** The field's seasons, oldest first. `field` must be one the actor may see (fields.get). */
-export async function fieldTrend(actor: Actor, field: Pick<Field, 'id'>): Promise<FieldTrend> {
+/** Per season of one field, oldest first: the sprayed share and chemical saved, without hotspots. */
+export type SeasonShares = Omit<SeasonTrend, 'hotspots' | 'hotspotAreaM2'>;
+
+/**
+ * The field's seasons, oldest first, as the year-over-year chart gives them; the season summary
+ * reads the same numbers. `field` must be one the actor may see (fields.get).
+ */
+export async function seasonShares(actor: Actor, field: Pick<Field, 'id'>): Promise<SeasonShares[]> {
 	const apps = await figures.listApplications(actor, { fieldId: field.id });
 	const bySeason = figures.bySeason(apps).sort((a, b) => a.season - b.season);
 	// The broadcast-equivalent liquid needs each application's carrier rate.
@@ -50,6 +56,24 @@ export async function fieldTrend(actor: Actor, field: Pick<Field, 'id'>): Promis
 		where a.farm_id = ${actor.farm.id} and a.field_id = ${field.id}
 		group by a.season`);
 	const seesPrices = may(actor.role, 'prices.view');
+	return bySeason.map((s) => {
+		const l = liquid.find((x) => x.season === s.season);
+		const costs = s.products.map((p) => p.savedCost);
+		return {
+			season: s.season,
+			applications: s.applications,
+			coveredM2: s.coveredM2,
+			sprayedM2: s.sprayedM2,
+			sprayedPercent: s.coveredM2 > 0 ? (100 * s.sprayedM2) / s.coveredM2 : null,
+			savedPercent: l && l.broadcast > 0 ? 100 * (1 - l.volume / l.broadcast) : null,
+			savedCost: seesPrices && costs.length && costs.every((c) => c !== null) ? costs.reduce((a, c) => a + c!, 0) : null
+		};
+	});
+}
+
+/** The field's seasons, oldest first. `field` must be one the actor may see (fields.get). */
+export async function fieldTrend(actor: Actor, field: Pick<Field, 'id'>): Promise<FieldTrend> {
+	const bySeason = await seasonShares(actor, field);
 	// Consecutive pairs compared with the map's summary; each season's own hotspots follow from
 	// them (later = persistent + new, earlier = persistent + cleared), so a lone season alone needs
 	// a season summary of its own.
@@ -67,28 +91,21 @@ export async function fieldTrend(actor: Actor, field: Pick<Field, 'id'>): Promis
 		return { hotspots: one.hotspots, hotspotAreaM2: one.hotspotAreaM2 };
 	};
 	const seasons: SeasonTrend[] = [];
-	for (const [i, s] of bySeason.entries()) {
-		const l = liquid.find((x) => x.season === s.season);
-		const costs = s.products.map((p) => p.savedCost);
-		seasons.push({
-			season: s.season,
-			applications: s.applications,
-			coveredM2: s.coveredM2,
-			sprayedM2: s.sprayedM2,
-			sprayedPercent: s.coveredM2 > 0 ? (100 * s.sprayedM2) / s.coveredM2 : null,
-			savedPercent: l && l.broadcast > 0 ? 100 * (1 - l.volume / l.broadcast) : null,
-			savedCost: seesPrices && costs.length && costs.every((c) => c !== null) ? costs.reduce((a, c) => a + c!, 0) : null,
-			...(await hotspotsOf(i))
-		});
-	}
+	for (const [i, s] of bySeason.entries()) seasons.push({ ...s, ...(await hotspotsOf(i)) });
 	const [farm] = await db.execute<{ t: number }>(sql`select hotspot_threshold_percent as t from farms where id = ${actor.farm.id}`);
 	return { seasons, pairs, thresholdPercent: farm?.t ?? 20 };
 }
 
 /** One small map per season (oldest first), all at the same span so they compare block for block. */
-export async function smallMultiples(actor: Actor, field: Field, seasons: number[]): Promise<{ span: number; maps: (SmallMultiple & { season: number })[] }> {
+export async function smallMultiples(
+	actor: Actor,
+	field: Field,
+	seasons: number[],
+	/** Blocks across the longer side at most: the season summary draws one map larger than the field page's. */
+	{ maxBlocks = 120 }: { maxBlocks?: number } = {}
+): Promise<{ span: number; maps: (SmallMultiple & { season: number })[] }> {
 	const grid = { cols: field.gridCols, rows: field.gridRows, originX: field.gridOriginX, originY: field.gridOriginY, cellSizeM: field.gridCellM };
-	const span = spanFor(grid);
+	const span = spanFor(grid, maxBlocks);
 	const region = { fieldId: field.id, ...blockAlign({ col0: 0, col1: grid.cols - 1, row0: 0, row1: grid.rows - 1 }, span) };
 	const rings = projectRings(field.gridProj, field.boundary);
 	const maps = [];

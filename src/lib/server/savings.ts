@@ -4,7 +4,7 @@ import { error } from '@sveltejs/kit';
 import { mayOpen, type Actor } from '$lib/server/auth/guard';
 import * as catalogue from '$lib/server/catalogue';
 import * as figures from '$lib/server/figures';
-import { filterRows, savedCostByField, savingsRows, savingsTotals, type CatalogueProduct, type SavingsFilter, type SavingsRow, type SavingsTotals } from '$lib/compute/savings-table';
+import { filterRows, savedCostByField, savingsRows, savingsTotals, type CatalogueProduct, type SavingsApplication, type SavingsFilter, type SavingsRow, type SavingsTotals } from '$lib/compute/savings-table';
 
 export type SavingsReport = {
 	/** Seasons with applications, newest first. */
@@ -28,16 +28,18 @@ export async function allRows(actor: Actor): Promise<SavingsRow[]> {
 	const prices = new Map<string, CatalogueProduct>(
 		products.map((p) => [p.id, { name: p.name, unit: p.unit, pricePerUnit: p.pricePerUnit ?? null }])
 	);
-	return savingsRows(
-		applications.map((a) => ({
-			fieldId: a.fieldId,
-			fieldName: a.fieldName,
-			season: a.season,
-			coveredM2: a.coveredM2,
-			products: a.products.map((p, i) => ({ productId: a.productIds[i], appliedUnits: p.appliedUnits, broadcastUnits: p.broadcastUnits }))
-		})),
-		prices
-	);
+	return savingsRows(savingsApplications(applications), prices);
+}
+
+/** Applications as the savings table reads them (the season summary reads them the same way). */
+export function savingsApplications(applications: Awaited<ReturnType<typeof figures.listApplications>>): SavingsApplication[] {
+	return applications.map((a) => ({
+		fieldId: a.fieldId,
+		fieldName: a.fieldName,
+		season: a.season,
+		coveredM2: a.coveredM2,
+		products: a.products.map((p, i) => ({ productId: a.productIds[i], appliedUnits: p.appliedUnits, broadcastUnits: p.broadcastUnits }))
+	}));
 }
 
 export async function report(actor: Actor, filter: SavingsFilter): Promise<SavingsReport> {

@@ -5,6 +5,9 @@ import type { StyleSpecification } from 'maplibre-gl';
 import latin from '@fontsource/noto-sans/files/noto-sans-latin-400-normal.woff2?url';
 import latinExt from '@fontsource/noto-sans/files/noto-sans-latin-ext-400-normal.woff2?url';
 import latin600 from '@fontsource/noto-sans/files/noto-sans-latin-600-normal.woff2?url';
+import { colors } from '$lib/map/palette';
+
+export { colors };
 
 export const FONT = 'Noto Sans Regular';
 export const FONT_BOLD = 'Noto Sans SemiBold';
@@ -12,20 +15,6 @@ export const FONT_BOLD = 'Noto Sans SemiBold';
 // Unicode ranges as @fontsource/noto-sans 5.3.0 declares them in 400.css.
 const latinRange = ['U+0000-00FF', 'U+0131', 'U+0152-0153', 'U+02BB-02BC', 'U+02C6', 'U+02DA', 'U+02DC', 'U+0304', 'U+0308', 'U+0329', 'U+2000-206F', 'U+20AC', 'U+2122', 'U+2191', 'U+2193', 'U+2212', 'U+2215', 'U+FEFF', 'U+FFFD'];
 const latinExtRange = ['U+0100-02BA', 'U+02BD-02C5', 'U+02C7-02CC', 'U+02CE-02D7', 'U+02DD-02FF', 'U+1D00-1DBF', 'U+1E00-1E9F', 'U+1EF2-1EFF', 'U+2020', 'U+20A0-20AB', 'U+20AD-20C0', 'U+2113', 'U+2C60-2C7F', 'U+A720-A7FF'];
-
-/** The palette's paper, as in src/routes/layout.css. */
-export const colors = {
-	paper: '#f7f5f0',
-	ink: '#1d2527',
-	line: '#d9d5cb',
-	loam300: '#8fb1b8',
-	loam500: '#3f6f79',
-	loam700: '#27444b',
-	straw500: '#c9a047',
-	bark700: '#5b3518',
-	loam900: '#162a2f',
-	alert700: '#9a2e1c'
-};
 
 export function baseStyle(): StyleSpecification {
 	return {

@@ -21,6 +21,17 @@ describe('what each role may open (DESIGN.md roles table)', () => {
 	});
 });
 
+describe('season summaries and landlord grants', () => {
+	test('managers and landlords open summaries; only managers grant fields; cost for managers and landlords only', () => {
+		for (const role of ['operator', 'agronomist'] as const) expect(mayOpen(role, 'summaries')).toBe(false);
+		expect(may('manager', 'grants.manage')).toBe(true);
+		for (const role of ['agronomist', 'operator', 'landlord'] as const) expect(may(role, 'grants.manage')).toBe(false);
+		expect(may('landlord', 'summaries.cost')).toBe(true);
+		expect(may('manager', 'summaries.cost')).toBe(true);
+		expect(may('operator', 'summaries.cost')).toBe(false);
+	});
+});
+
 describe('notes (the team’s working notes)', () => {
 	test('managers and agronomists write notes, operators read them, landlords neither', () => {
 		expect(['manager', 'agronomist'].every((r) => may(r as 'manager', 'notes.write'))).toBe(true);

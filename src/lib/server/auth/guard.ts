@@ -49,7 +49,12 @@ export const abilities = {
 	'notes.moderate': ['manager'],
 	// Zones of a field: landlords see those of their granted fields, read-only.
 	'zones.view': ['manager', 'agronomist', 'operator', 'landlord'],
-	'zones.edit': ['manager', 'agronomist']
+	'zones.edit': ['manager', 'agronomist'],
+	// Which landlord sees which field, on what lease: managers only (grants are who may see what).
+	'grants.manage': ['manager'],
+	// Herbicide cost at catalogue prices in season summaries: the landlord of a crop-share field
+	// pays a share of it, so they see the cost of their granted fields (never other fields').
+	'summaries.cost': ['manager', 'landlord']
 } as const satisfies Record<string, readonly Role[]>;
 export type Ability = keyof typeof abilities;
 
