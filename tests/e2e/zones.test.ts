@@ -378,6 +378,9 @@ test('notes pinned to a zone: written on the zone page, and on the map by placin
 	await expect(edit.getByLabel('Zone “Railside all”')).toBeChecked();
 	await edit.getByLabel('This point').check();
 	await edit.getByRole('button', { name: 'Save changes' }).click();
+	// The form closes when the server has answered; only then is the card's pin worth reading.
+	await expect(edit).toHaveCount(0);
+	await expect(mapCard.getByTestId('note-body')).toBeVisible();
 	await expect(mapCard.getByTestId('note-zone')).toHaveCount(0);
 	await page.goto(`/tallowgrass/fields/${id}/zones`);
 	await expect(page.getByTestId('zone-list')).toContainText('1 note');
