@@ -142,8 +142,11 @@ test('an operator who opted out uploads a log; the manager reads the processed m
 		await expect(rows).toContainText(people.manager);
 		await expect(rows).toContainText('upload-done');
 		await mp.screenshot({ path: 'tests/screenshots/manager-outbox-desktop.png', fullPage: true });
+		// On a phone the list is one card per message.
 		await mp.setViewportSize(viewports.phone);
+		await expect(mp.getByTestId('outbox-cards').getByRole('listitem').filter({ hasText: `Processed: ${fileName}` })).toHaveCount(1);
 		await mp.screenshot({ path: 'tests/screenshots/manager-outbox-phone.png', fullPage: true });
+		await mp.setViewportSize(viewports.desktop);
 
 		await rows.getByRole('link', { name: `Processed: ${fileName}` }).click();
 		await expect(mp.getByRole('heading', { level: 1, name: `Processed: ${fileName}` })).toBeVisible();
@@ -153,9 +156,9 @@ test('an operator who opted out uploads a log; the manager reads the processed m
 		const frame = mp.getByTestId('mail-html');
 		await expect(frame).toHaveAttribute('sandbox', '');
 		await expect(mp.frameLocator('[data-testid="mail-html"]').getByRole('link', { name: 'Open the upload' })).toBeVisible();
-		await mp.screenshot({ path: 'tests/screenshots/manager-outbox-message-phone.png', fullPage: true });
-		await mp.setViewportSize(viewports.desktop);
 		await mp.screenshot({ path: 'tests/screenshots/manager-outbox-message-desktop.png', fullPage: true });
+		await mp.setViewportSize(viewports.phone);
+		await mp.screenshot({ path: 'tests/screenshots/manager-outbox-message-phone.png', fullPage: true });
 
 		// The link in the mail opens the upload's page.
 		const link = linksIn(await text.textContent()).find((l) => l.includes('/uploads/'))!;
