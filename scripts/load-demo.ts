@@ -135,6 +135,8 @@ async function main() {
 		}
 
 		// Logs: stored raw, uploaded by their operator, mapped, processed by the worker's code.
+		// No upload mail: this replays past seasons, and 36 messages per first start would bury
+		// the mail people do want to see in the development outbox (invitations, resets, new uploads).
 		for (const log of f.logs) {
 			const uploader: Actor = { user: person(log.uploadedBy), farm: farmRef, role: 'operator' };
 			const format = uploads.formatOf(log.file);
@@ -147,7 +149,7 @@ async function main() {
 				tankMixId: mixIds.get(log.tankMix)!,
 				onlyDays: null
 			});
-			await processUploadJob(db, upload.id, { attemptsLeft: 0 });
+			await processUploadJob(db, upload.id, { attemptsLeft: 0, notify: false });
 			const [after] = await db.select().from(uploadRows).where(eq(uploadRows.id, upload.id));
 			if (after.status !== 'done') throw new Error(`demo: ${log.file} failed: ${after.error}`);
 			done += 1;

@@ -88,6 +88,10 @@ const probes: Record<string, Probe[]> = {
 	'/[farm]/team/audit': [{ url: () => '/tallowgrass/team/audit?kind=fields', about: 'farm' }],
 	'/[farm]/team/audit/csv': [{ url: () => '/tallowgrass/team/audit/csv', about: 'farm' }],
 	'/invite/[token]': [{ url: () => '/invite/not-a-real-invitation-token', about: 'none' }],
+	'/reset-password': [{ url: () => '/reset-password', about: 'none' }],
+	'/reset-password/[token]': [{ url: () => '/reset-password/not-a-real-reset-token', about: 'none' }],
+	'/[farm]/outbox': [{ url: () => '/tallowgrass/outbox', about: 'farm' }],
+	'/[farm]/outbox/[id=uuid]': [{ url: () => '/tallowgrass/outbox/00000000-0000-4000-8000-000000000000', about: 'not-granted' }],
 	'/[farm]/uploads': [{ url: () => '/tallowgrass/uploads', about: 'farm' }],
 	'/[farm]/uploads/[id=uuid]': [{ url: (i) => `/tallowgrass/uploads/${i.notGrantedUpload}`, about: 'not-granted' }],
 	'/api/farms/[farm]/exports/[kind]': [
@@ -268,7 +272,7 @@ test('an operator sees no prices and no team, on any route', async ({ browser })
 
 test('without a session, pages send you to sign in and APIs answer 401', async ({ browser }) => {
 	const anonymous = await as(browser, null);
-	const open = new Set(['/', '/login', '/logout', '/api/health', '/invite/not-a-real-invitation-token']);
+	const open = new Set(['/', '/login', '/logout', '/api/health', '/invite/not-a-real-invitation-token', '/reset-password', '/reset-password/not-a-real-reset-token']);
 	try {
 		for (const c of allCases()) {
 			const path = c.url.split('?')[0];

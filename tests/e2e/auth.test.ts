@@ -2,7 +2,8 @@ import { expect, test } from '@playwright/test';
 import { password, people, signIn } from './helpers';
 
 const navFor = {
-	manager: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Savings', 'Catalogue', 'Team', 'Season summaries'],
+	// The e2e server runs with the development outbox on (scripts/e2e-server.sh).
+	manager: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Savings', 'Catalogue', 'Team', 'Season summaries', 'Outbox (development)'],
 	agronomist: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Catalogue'],
 	operator: ['Overview', 'Map', 'Fields', 'Uploads', 'Records', 'Calibration', 'Catalogue'],
 	landlord: ['Season summaries']

@@ -4,7 +4,7 @@ import { expect, test } from '@playwright/test';
 import { people, signIn } from './helpers';
 
 const pages = {
-	manager: ['', '/map', '/fields', '/uploads', '/records', '/calibration', '/savings', '/catalogue', '/team', '/summaries'],
+	manager: ['', '/map', '/fields', '/uploads', '/records', '/calibration', '/savings', '/catalogue', '/team', '/summaries', '/outbox'],
 	agronomist: ['', '/catalogue', '/records', '/calibration'],
 	operator: ['', '/uploads', '/records', '/calibration', '/catalogue'],
 	landlord: ['/summaries']

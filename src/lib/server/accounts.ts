@@ -32,3 +32,13 @@ export async function setPassword(userId: string, password: string): Promise<voi
 export async function setUnits(userId: string, units: 'metric' | 'us'): Promise<void> {
 	await db.update(users).set({ units }).where(eq(users.id, userId));
 }
+
+/** Whether the person gets mail about processed and failed uploads. */
+export async function notifyUploads(userId: string): Promise<boolean> {
+	const [user] = await db.select({ notifyUploads: users.notifyUploads }).from(users).where(eq(users.id, userId));
+	return user?.notifyUploads ?? false;
+}
+
+export async function setNotifyUploads(userId: string, on: boolean): Promise<void> {
+	await db.update(users).set({ notifyUploads: on }).where(eq(users.id, userId));
+}

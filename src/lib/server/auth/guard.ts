@@ -23,7 +23,9 @@ export const areas = {
 	savings: ['manager'],
 	catalogue: ['manager', 'agronomist', 'operator'],
 	team: ['manager'],
-	summaries: ['manager', 'landlord']
+	summaries: ['manager', 'landlord'],
+	// Only while the development outbox is on (devOutboxEnabled): the farm's mail, unsent.
+	outbox: ['manager']
 } as const satisfies Record<string, readonly Role[]>;
 export type Area = keyof typeof areas;
 

@@ -5,7 +5,11 @@ import { signInFailures } from '$lib/server/db/schema';
 // Per account slows guessing one password; per address slows trying many accounts.
 export const limits = {
 	account: { max: 5, windowMinutes: 15 },
-	address: { max: 30, windowMinutes: 15 }
+	address: { max: 30, windowMinutes: 15 },
+	// Password reset requests (every request counts, not only failures): per e-mail so one inbox
+	// is not flooded, per address so one machine cannot mail many people.
+	resetEmail: { max: 3, windowMinutes: 60 },
+	resetAddress: { max: 10, windowMinutes: 60 }
 } as const;
 
 type Kind = keyof typeof limits;
@@ -25,6 +29,7 @@ export async function minutesLocked(kind: Kind, value: string): Promise<number> 
 	return Math.max(1, Math.ceil(row.left / 60));
 }
 
+/** Counts one more try (a failed sign-in, a reset request) for the key. */
 export async function recordFailure(kind: Kind, value: string): Promise<void> {
 	const { windowMinutes } = limits[kind];
 	await db.execute(sql`

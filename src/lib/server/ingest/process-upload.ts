@@ -25,6 +25,7 @@ import {
 	tankMixes,
 	uploads
 } from '$lib/server/db/schema';
+import { notifyUploadOutcome } from '$lib/server/notify/uploads';
 import * as rawStore from '$lib/server/storage/raw-store';
 import { concatFixes, packFixes, unpackFixes } from './pack';
 
@@ -306,8 +307,13 @@ export async function processUpload(db: Db, uploadId: string, progress: Progress
 	});
 }
 
-/** The worker's job: status, progress and a user-safe reason around processUpload. */
-export async function processUploadJob(db: Db, uploadId: string, { attemptsLeft }: { attemptsLeft: number }) {
+/**
+ * The worker's job: status, progress and a user-safe reason around processUpload. When the
+ * upload ends done or failed (not when it goes back to the queue for a retry), the uploader and
+ * the farm's managers are mailed, after the job's transaction has committed; `notify: false`
+ * skips that (the demo loader replaying old seasons).
+ */
+export async function processUploadJob(db: Db, uploadId: string, { attemptsLeft, notify = true }: { attemptsLeft: number; notify?: boolean }) {
 	await db
 		.update(uploads)
 		.set({ status: 'processing', progress: 0.02, attempts: sql`${uploads.attempts} + 1` })
@@ -319,26 +325,32 @@ export async function processUploadJob(db: Db, uploadId: string, { attemptsLeft 
 		last = Date.now();
 		await db.update(uploads).set({ progress: fraction }).where(eq(uploads.id, uploadId));
 	};
+	let ended = false;
 	try {
 		await processUpload(db, uploadId, progress);
+		ended = true;
 	} catch (e) {
 		if (e instanceof UploadProblem) {
 			await db
 				.update(uploads)
 				.set({ status: 'failed', progress: 0, error: e.message, errorAt: e.at ? { file: e.at.file, row: e.at.row ?? undefined, column: e.at.column ?? undefined } : null })
 				.where(eq(uploads.id, uploadId));
-			return; // the file is wrong: retrying will not help
+			ended = true; // the file is wrong: retrying will not help
+		} else {
+			const id = Math.random().toString(36).slice(2, 10);
+			console.error(`[worker error ${id}] upload ${uploadId}`, e);
+			await db
+				.update(uploads)
+				.set({
+					status: attemptsLeft > 0 ? 'queued' : 'failed',
+					error: attemptsLeft > 0 ? null : `Processing failed on our side (reference ${id}). Try "Process again", or tell us the reference.`
+				})
+				.where(eq(uploads.id, uploadId));
+			if (attemptsLeft > 0) throw e; // pg-boss retries
+			ended = true;
 		}
-		const id = Math.random().toString(36).slice(2, 10);
-		console.error(`[worker error ${id}] upload ${uploadId}`, e);
-		await db
-			.update(uploads)
-			.set({
-				status: attemptsLeft > 0 ? 'queued' : 'failed',
-				error: attemptsLeft > 0 ? null : `Processing failed on our side (reference ${id}). Try "Process again", or tell us the reference.`
-			})
-			.where(eq(uploads.id, uploadId));
-		if (attemptsLeft > 0) throw e; // pg-boss retries
 	}
+	// Outside the try: mail never fails or retries the job (notifyUploadOutcome never throws).
+	if (ended && notify) await notifyUploadOutcome(db, uploadId);
 }
 

@@ -1,5 +1,6 @@
 import { areas, may, mayOpen, requireMember, type Area } from '$lib/server/auth/guard';
 import * as farms from '$lib/server/farms';
+import { devOutboxEnabled } from '$lib/server/mail/mailer';
 import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async (event) => {
@@ -8,7 +9,7 @@ export const load: LayoutServerLoad = async (event) => {
 	return {
 		farm: actor.farm,
 		role: actor.role,
-		nav: (Object.keys(areas) as Area[]).filter((area) => mayOpen(actor.role, area)),
+		nav: (Object.keys(areas) as Area[]).filter((area) => mayOpen(actor.role, area) && (area !== 'outbox' || devOutboxEnabled())),
 		canSeePrices: may(actor.role, 'prices.view')
 	};
 };

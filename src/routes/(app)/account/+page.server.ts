@@ -6,9 +6,9 @@ import { passwordProblem } from '$lib/server/auth/password';
 import { createSession, invalidateUserSessions, setSessionCookie } from '$lib/server/auth/session';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = (event) => {
-	requireUser(event);
-	return {};
+export const load: PageServerLoad = async (event) => {
+	const user = requireUser(event);
+	return { notifyUploads: await accounts.notifyUploads(user.id), justReset: event.url.searchParams.get('password') === 'reset' };
 };
 
 export const actions: Actions = {
@@ -18,6 +18,13 @@ export const actions: Actions = {
 		if (units !== 'metric' && units !== 'us') return fail(400, { unitsMessage: 'Choose metric or US customary.' });
 		await accounts.setUnits(user.id, units);
 		return { unitsSaved: true };
+	},
+	notifications: async (event) => {
+		const user = requireUser(event);
+		// An unticked checkbox sends nothing: absent means off.
+		const on = (await event.request.formData()).get('notifyUploads') === 'on';
+		await accounts.setNotifyUploads(user.id, on);
+		return { notificationsSaved: true };
 	},
 	password: async (event) => {
 		const user = requireUser(event);

@@ -1,4 +1,4 @@
-import { index, integer, pgEnum, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+import { boolean, index, integer, pgEnum, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
 
 export const unitSystem = pgEnum('unit_system', ['metric', 'us']);
 
@@ -10,6 +10,8 @@ export const users = pgTable('users', {
 	passwordHash: text().notNull(),
 	units: unitSystem().notNull().default('metric'),
 	lastFarmId: text(),
+	/** Mail when an upload of this person's, or (for managers) of their farm's, is processed or fails. */
+	notifyUploads: boolean().notNull().default(true),
 	createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 });
 export type User = typeof users.$inferSelect;

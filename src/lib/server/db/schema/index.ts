@@ -11,3 +11,4 @@ export * from './notes';
 export * from './zones';
 export * from './mail';
 export * from './invitations';
+export * from './password-resets';
