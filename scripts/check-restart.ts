@@ -5,11 +5,11 @@ import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { createReadStream, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { eq } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import { fieldGeometryColumns } from '../src/lib/geo/field-geometry';
 import { detectMapping } from '../src/lib/ingest/mapping';
 import { createDb } from '../src/lib/server/db/create';
-import { applications, farms, fields, machines, rawFiles, tankMixes, uploads } from '../src/lib/server/db/schema';
+import { applications, cellResults, farms, fields, machines, rawFiles, tankMixes, uploads } from '../src/lib/server/db/schema';
 import { processUpload } from '../src/lib/server/ingest/process-upload';
 import { processUploadQueue, startQueue } from '../src/lib/server/jobs/queue';
 import * as rawStore from '../src/lib/server/storage/raw-store';
@@ -54,6 +54,16 @@ await db.insert(rawFiles).values(stored);
 const reference = await makeUpload('reference', stored);
 await processUpload(db, reference.upload.id, async () => {});
 const expected = await db.select().from(applications).where(eq(applications.farmId, reference.farm.id)).orderBy(applications.day);
+// Per-cell results too, not only the totals: a retried job must not leave a cell counted twice.
+const cellsOf = async (farmId: string) =>
+	(
+		await db
+			.select({ n: sql<number>`count(*)::int`, covered: sql<number>`coalesce(sum(${cellResults.coveredM2}), 0)`, volume: sql<number>`coalesce(sum(${cellResults.volumeL}), 0)` })
+			.from(cellResults)
+			.innerJoin(applications, eq(applications.id, cellResults.applicationId))
+			.where(eq(applications.farmId, farmId))
+	)[0];
+const expectedCells = await cellsOf(reference.farm.id);
 
 const crashed = await makeUpload('crashed', stored);
 const boss = await startQueue(url, 'app');
@@ -80,11 +90,16 @@ for (;;) {
 }
 w.kill('SIGTERM');
 const got = await db.select().from(applications).where(eq(applications.farmId, crashed.farm.id)).orderBy(applications.day);
+const gotCells = await cellsOf(crashed.farm.id);
 const same =
 	final?.status === 'done' &&
+	expectedCells.n > 0 &&
+	gotCells.n === expectedCells.n &&
+	Math.abs(gotCells.covered - expectedCells.covered) <= 1e-9 * expectedCells.covered &&
+	Math.abs(gotCells.volume - expectedCells.volume) <= 1e-9 * Math.max(expectedCells.volume, 1) &&
 	got.length === expected.length &&
 	got.every((a, i) => a.coveredM2 === expected[i].coveredM2 && a.sprayedM2 === expected[i].sprayedM2 && a.volumeL === expected[i].volumeL);
-console.log(`restart: after the restart the upload is ${final?.status} in ${((Date.now() - t1) / 1000).toFixed(1)} s (attempts ${final?.attempts}); ${got.length} applications, figures ${same ? 'equal to' : 'DIFFERENT from'} the uninterrupted run's`);
+console.log(`restart: after the restart the upload is ${final?.status} in ${((Date.now() - t1) / 1000).toFixed(1)} s (attempts ${final?.attempts}); ${got.length} applications and ${gotCells.n} cell results, figures ${same ? 'equal to' : 'DIFFERENT from'} the uninterrupted run's`);
 await boss.stop({ graceful: false, wait: false });
 await client.end();
 process.exit(same ? 0 : 1);

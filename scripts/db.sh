@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # The project's own PostgreSQL on 127.0.0.1:$PGPORT, with a private data folder.
-# Usage: scripts/db.sh start | stop | status | url [DB] | psql [DB] | create DB | recreate DB
+# Usage: scripts/db.sh start | stop | status | url [DB] | psql [DB] | create DB | recreate DB | bin
 # Debian's server is installed with apt when missing. As root every pg command runs as the
 # `postgres` user, because the server refuses to run as root.
 set -euo pipefail
@@ -126,8 +126,12 @@ psql)
 logs)
 	echo "$logfile"
 	;;
+bin)
+	# The folder of pg_dump, pg_restore and psql of the same version as the server (db:backup uses it).
+	echo "$bin"
+	;;
 *)
-	echo "usage: scripts/db.sh start|stop|status|url [DB]|create DB|recreate DB|psql [DB]|logs" >&2
+	echo "usage: scripts/db.sh start|stop|status|url [DB]|create DB|recreate DB|psql [DB]|logs|bin" >&2
 	exit 2
 	;;
 esac

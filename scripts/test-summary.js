@@ -2,7 +2,7 @@
 // A missing report counts as a failure, so a runner that crashed cannot look green.
 import { readFileSync } from 'node:fs';
 
-const [vitestPath, playwrightPath] = process.argv.slice(2);
+const [vitestPath, playwrightPath, checksPath] = process.argv.slice(2);
 let passed = 0;
 let failed = 0;
 let skipped = 0;
@@ -30,6 +30,26 @@ if (playwright) {
 	failed += playwright.stats.unexpected;
 	skipped += playwright.stats.skipped;
 	failed += playwright.errors?.length ?? 0;
+}
+
+// The crash checks (scripts/test.sh): one line "pass NAME" or "fail NAME" each.
+if (checksPath) {
+	const lines = (() => {
+		try {
+			return readFileSync(checksPath, 'utf8').split('\n').filter(Boolean);
+		} catch {
+			console.error(`test-summary: no crash-check report at ${checksPath}`);
+			failed += 1;
+			return [];
+		}
+	})();
+	for (const line of lines) {
+		if (line.startsWith('pass ')) passed += 1;
+		else {
+			failed += 1;
+			console.error(`test-summary: ${line}`);
+		}
+	}
 }
 
 console.log(`${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`);

@@ -25,6 +25,14 @@ npm run --silent build || status=1
 echo "== end-to-end tests (playwright, Debian chromium)"
 PLAYWRIGHT_JSON_OUTPUT_NAME="$reports/playwright.json" npx playwright test --reporter=list,json || status=1
 
-node scripts/test-summary.js "$reports/vitest.json" "$reports/playwright.json"
+# Crash and restart, against the built app and this cluster (check:db-outage stops and starts it,
+# so it runs last, when nothing else uses it). Each counts as one test in the summary.
+echo "== crash and restart checks"
+: >"$reports/checks.txt"
+for check in check:restart check:crash check:db-outage; do
+	if npm run --silent "$check"; then echo "pass $check" >>"$reports/checks.txt"; else echo "fail $check" >>"$reports/checks.txt"; status=1; fi
+done
+
+node scripts/test-summary.js "$reports/vitest.json" "$reports/playwright.json" "$reports/checks.txt"
 [ $? = 0 ] || status=1
 exit $status

@@ -12,6 +12,8 @@ declare global {
 			session: Session | null;
 			/** Memberships already checked in this request, by farm slug. */
 			actors?: Map<string, Actor>;
+			/** Set by handleError when the database could not be reached: the answer becomes a 503. */
+			databaseUnavailable?: boolean;
 		}
 	}
 }

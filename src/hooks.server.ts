@@ -4,6 +4,7 @@ import { env } from '$env/dynamic/private';
 import { startWorker, stopWorker } from '$lib/server/jobs/worker-process';
 import { stopQueue } from '$lib/server/jobs/app-queue';
 import { client } from '$lib/server/db';
+import { isDatabaseUnavailable, unavailableResponse, unavailableSentence } from '$lib/server/db/unavailable';
 import {
 	clearSessionCookie,
 	sessionCookieName,
@@ -28,7 +29,15 @@ export const handle: Handle = async ({ event, resolve }) => {
 	event.locals.user = null;
 	event.locals.session = null;
 	if (token) {
-		const { session, user, renewed } = await validateSession(token);
+		let validated: Awaited<ReturnType<typeof validateSession>>;
+		try {
+			validated = await validateSession(token);
+		} catch (e) {
+			if (!isDatabaseUnavailable(e)) throw e;
+			console.error(`[db] unavailable: ${event.request.method} ${event.url.pathname} answered 503`);
+			return unavailableResponse(event);
+		}
+		const { session, user, renewed } = validated;
 		if (session && user) {
 			event.locals.user = user;
 			event.locals.session = session;
@@ -37,7 +46,9 @@ export const handle: Handle = async ({ event, resolve }) => {
 			clearSessionCookie(event.cookies);
 		}
 	}
-	const response = await resolve(event);
+	let response = await resolve(event);
+	// A load, action or endpoint lost the database (handleError noted it): 503, not 500.
+	if (event.locals.databaseUnavailable) response = unavailableResponse(event);
 	response.headers.set('X-Content-Type-Options', 'nosniff');
 	response.headers.set('Referrer-Policy', 'same-origin');
 	response.headers.set('X-Frame-Options', 'DENY');
@@ -47,6 +58,11 @@ export const handle: Handle = async ({ event, resolve }) => {
 // Unexpected errors are logged with an id; people see the id, never the message, stack or SQL.
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message };
+	if (isDatabaseUnavailable(error)) {
+		event.locals.databaseUnavailable = true;
+		console.error(`[db] unavailable: ${event.request.method} ${event.url.pathname} answered 503`);
+		return { message: unavailableSentence };
+	}
 	const id = crypto.randomUUID().slice(0, 8);
 	console.error(`[error ${id}] ${event.request.method} ${event.url.pathname}`, error);
 	return { message: 'Something went wrong on our side.', id };

@@ -18,7 +18,9 @@ export async function startQueue(connectionString: string, role: 'app' | 'worker
 		supervise: role === 'worker',
 		schedule: false
 	});
-	boss.on('error', (e) => console.error('[queue]', e));
+	// One line per error: while the database is away pg-boss reports every failed poll, and the
+	// full error object (with its pg client) runs to a hundred lines.
+	boss.on('error', (e: Error & { code?: string }) => console.error(`[queue ${role}] ${e.code ? `${e.code} ` : ''}${e.message}`));
 	await boss.start();
 	await boss.createQueue(processUploadQueue, {
 		name: processUploadQueue,
