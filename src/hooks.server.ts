@@ -10,6 +10,7 @@ import {
 	setSessionCookie,
 	validateSession
 } from '$lib/server/auth/session';
+import { crossSiteWriteRefusal, securityHeaders } from '$lib/server/security/requests';
 
 export const init: ServerInit = () => {
 	if (building) return;
@@ -24,6 +25,8 @@ export const init: ServerInit = () => {
 };
 
 export const handle: Handle = async ({ event, resolve }) => {
+	const refusal = crossSiteWriteRefusal(event.request.method, event.request.headers, event.url.origin);
+	if (refusal) return withHeaders(new Response(refusal, { status: 403, headers: { 'content-type': 'text/plain' } }), event.url.protocol === 'https:');
 	const token = event.cookies.get(sessionCookieName);
 	event.locals.user = null;
 	event.locals.session = null;
@@ -37,12 +40,13 @@ export const handle: Handle = async ({ event, resolve }) => {
 			clearSessionCookie(event.cookies);
 		}
 	}
-	const response = await resolve(event);
-	response.headers.set('X-Content-Type-Options', 'nosniff');
-	response.headers.set('Referrer-Policy', 'same-origin');
-	response.headers.set('X-Frame-Options', 'DENY');
-	return response;
+	return withHeaders(await resolve(event), event.url.protocol === 'https:');
 };
+
+function withHeaders(response: Response, https: boolean): Response {
+	for (const [name, value] of Object.entries(securityHeaders(https))) response.headers.set(name, value);
+	return response;
+}
 
 // Unexpected errors are logged with an id; people see the id, never the message, stack or SQL.
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
