@@ -341,8 +341,8 @@ function malformed(url: string): string[] {
 	}
 	// Each query value made wrong, and the usual parameters added wrong.
 	const params = new URLSearchParams(query);
-	for (const key of new Set([...params.keys(), 'season', 'field', 'format', 'application', 'col', 'row', 'kind', 'compare', 'page'])) {
-		for (const bad of ['abc', '99999999999999999999999', '-1', '1e400', "'", '[]', '%zz']) {
+	for (const key of new Set([...params.keys(), 'season', 'field'])) {
+		for (const bad of ['abc', '99999999999999999999999', '-1.5', "'", '%zz']) {
 			const p = new URLSearchParams(params);
 			p.set(key, bad);
 			out.add(`${path}?${p.toString().replace('%25zz', '%zz')}`);
