@@ -393,7 +393,7 @@ test('malformed requests to every route answer without stack traces, paths or SQ
 			const broken = [
 				{ contentType: 'multipart/form-data; boundary=----pb', body: '------pb\r\nContent-Disposition: form-data; name="x"\r\n\r\nno end' },
 				{ contentType: 'multipart/form-data', body: 'no boundary at all' },
-				{ contentType: 'multipart/form-data; boundary=----pb', body: 'x'.repeat(200_000) },
+				{ contentType: 'multipart/form-data; boundary=----pb', body: '\u0000\u00ff garbage, no parts' },
 				{ contentType: 'application/json', body: '{"broken": ' },
 				{ contentType: 'application/json', body: '{"season": 1e400, "id": "not-a-uuid"}' }
 			];
