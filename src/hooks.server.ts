@@ -11,6 +11,7 @@ import {
 	setSessionCookie,
 	validateSession
 } from '$lib/server/auth/session';
+import { crossSiteWriteRefusal, securityHeaders } from '$lib/server/security/requests';
 
 export const init: ServerInit = () => {
 	if (building) return;
@@ -25,6 +26,8 @@ export const init: ServerInit = () => {
 };
 
 export const handle: Handle = async ({ event, resolve }) => {
+	const refusal = crossSiteWriteRefusal(event.request.method, event.request.headers, event.url.origin);
+	if (refusal) return withHeaders(new Response(refusal, { status: 403, headers: { 'content-type': 'text/plain' } }), event.url.protocol === 'https:');
 	const token = event.cookies.get(sessionCookieName);
 	event.locals.user = null;
 	event.locals.session = null;
@@ -35,7 +38,7 @@ export const handle: Handle = async ({ event, resolve }) => {
 		} catch (e) {
 			if (!isDatabaseUnavailable(e)) throw e;
 			console.error(`[db] unavailable: ${event.request.method} ${event.url.pathname} answered 503`);
-			return unavailableResponse(event);
+			return withHeaders(unavailableResponse(event), event.url.protocol === 'https:');
 		}
 		const { session, user, renewed } = validated;
 		if (session && user) {
@@ -49,11 +52,13 @@ export const handle: Handle = async ({ event, resolve }) => {
 	let response = await resolve(event);
 	// A load, action or endpoint lost the database (handleError noted it): 503, not 500.
 	if (event.locals.databaseUnavailable) response = unavailableResponse(event);
-	response.headers.set('X-Content-Type-Options', 'nosniff');
-	response.headers.set('Referrer-Policy', 'same-origin');
-	response.headers.set('X-Frame-Options', 'DENY');
-	return response;
+	return withHeaders(response, event.url.protocol === 'https:');
 };
+
+function withHeaders(response: Response, https: boolean): Response {
+	for (const [name, value] of Object.entries(securityHeaders(https))) response.headers.set(name, value);
+	return response;
+}
 
 // Unexpected errors are logged with an id; people see the id, never the message, stack or SQL.
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
