@@ -173,4 +173,21 @@ describe('invalid and odd polygons', () => {
 		expect(msg(parseBoundaryFile('b.txt', utf8('hello')))).toMatch(/is not a boundary file/);
 		expect(msg(parseBoundaryFile('b.geojson', new Uint8Array()))).toBe('is empty');
 	});
+
+	// Shrunk counterexamples from boundaries.fuzz.test.ts (these crashed with raw TypeErrors).
+	test('malformed polygon coordinates are refused naming the feature', () => {
+		const msg = (geometry: unknown) => {
+			const r = parseBoundaryFile('b.geojson', utf8(JSON.stringify({ type: 'FeatureCollection', features: [{ type: 'Feature', properties: { name: 'Invented' }, geometry }] })));
+			return r.ok ? 'ok' : r.error;
+		};
+		expect(msg({ type: 'Polygon', coordinates: [] })).toEqual({ file: 'b.geojson', row: 1, column: null, message: "feature 1 ('Invented'): a polygon has no rings" });
+		expect(msg({ type: 'Polygon', coordinates: 'x' })).toMatchObject({ message: "feature 1 ('Invented'): a polygon has no rings" });
+		expect(msg({ type: 'MultiPolygon', coordinates: [[[[0, 0], [1, 0], [1, 1], [0, 0]]], [[[0, 0], ['1', 0]]]] })).toMatchObject({ message: "feature 1 ('Invented'): part 2: ring 0 has a point that is not a pair of numbers" });
+		expect(msg({ type: 'GeometryCollection', geometries: null })).toMatchObject({ message: "feature 1 ('Invented'): the GeometryCollection has no list of geometries" });
+		let deep: unknown = { type: 'Polygon', coordinates: [square] };
+		for (let d = 0; d < 12; d++) deep = { type: 'GeometryCollection', geometries: [deep] };
+		expect(msg(deep)).toMatchObject({ message: "feature 1 ('Invented'): GeometryCollections are nested more than 8 deep" });
+		// Two levels of nesting still read.
+		expect(msg({ type: 'GeometryCollection', geometries: [{ type: 'GeometryCollection', geometries: [{ type: 'Polygon', coordinates: [square] }] }] })).toBe('ok');
+	});
 });
