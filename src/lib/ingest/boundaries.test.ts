@@ -190,4 +190,23 @@ describe('invalid and odd polygons', () => {
 		// Two levels of nesting still read.
 		expect(msg({ type: 'GeometryCollection', geometries: [{ type: 'GeometryCollection', geometries: [{ type: 'Polygon', coordinates: [square] }] }] })).toBe('ok');
 	});
+
+	// Found while fuzzing: a ring of many points in straight north-south lines took 7 s at 128,000
+	// points (crossing checks go quadratic), so a 25 MB file could hold a server for minutes.
+	test('polygons and files with too many points are refused with the count', () => {
+		const ring = (n: number, dx = 0) => {
+			const pts: number[][] = [];
+			for (let i = 0; i < n; i++) pts.push([-98.52 + dx, 38.51 + (0.008 * i) / n]);
+			for (let i = 0; i < n; i++) pts.push([-98.51 + dx, 38.518 - (0.008 * i) / n]);
+			return [...pts, pts[0]];
+		};
+		const file = (rings: number[][][]) => utf8(JSON.stringify({ type: 'FeatureCollection', features: rings.map((r) => ({ type: 'Feature', properties: {}, geometry: { type: 'Polygon', coordinates: [r] } })) }));
+		const big = parseBoundaryFile('b.geojson', file([ring(10_000)]));
+		expect(big.ok || big.error).toEqual({ file: 'b.geojson', row: 1, column: null, message: 'feature 1: a polygon has 20001 points; at most 20000 are read per polygon (simplify it first)' });
+		const many = parseBoundaryFile('b.geojson', file(Array.from({ length: 21 }, (_, j) => ring(5_000, j * 0.02))));
+		expect(many.ok || many.error.message).toBe('holds more than 200000 boundary points; at most that many are read per file (split or simplify it)');
+		const started = performance.now();
+		expect(parseBoundaryFile('b.geojson', file([ring(9_999)])).ok).toBe(true);
+		expect(performance.now() - started).toBeLessThan(5_000);
+	});
 });

@@ -161,7 +161,7 @@ export function mutateTable(text: string, mutations: TextMutation[]): string {
 		else if (m.op === 'cell') {
 			const r = rows[m.row % rows.length];
 			if (r.length) r[m.col % r.length] = m.value;
-		} else rows = rows.map((r) => {
+		} else if (m.op === 'swapCols') rows = rows.map((r) => {
 			if (!r.length) return r;
 			const out = [...r];
 			const a = m.a % r.length, b = m.b % r.length;
