@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import geodesic from 'geographiclib-geodesic';
 import type { MultiPolygon, Polygon, Position } from 'geojson';
+import { unzipSync, zipSync } from 'fflate';
 import { describe, expect, test } from 'vitest';
 import { parseBoundaryFile, type BoundaryResult } from './boundaries';
 import { utf8 } from './testing';
@@ -208,5 +209,18 @@ describe('invalid and odd polygons', () => {
 		const started = performance.now();
 		expect(parseBoundaryFile('b.geojson', file([ring(9_999)])).ok).toBe(true);
 		expect(performance.now() - started).toBeLessThan(5_000);
+	});
+
+	// Shrunk from boundaries.fuzz.test.ts (seed 519571944, case 76): bytes spliced into the .dbf
+	// made its header declare 33,623,166 records; shpjs looped over them for 20 s.
+	test('a .dbf whose header declares more records than the file holds is refused at once', () => {
+		const entries = unzipSync(new Uint8Array(readFileSync('sample-data/fixtures/boundary-utm14n.zip')));
+		const name = Object.keys(entries).find((k) => k.endsWith('.dbf'))!;
+		const dbf = entries[name].slice();
+		new DataView(dbf.buffer).setUint32(4, 33_623_166, true);
+		const started = performance.now();
+		const r = parseBoundaryFile('fields.zip', zipSync({ ...entries, [name]: dbf }));
+		expect(performance.now() - started).toBeLessThan(2_000);
+		expect(r.ok || r.error.message).toBe(`'fields_utm14n.dbf' is damaged: its header declares 33623166 records of ${new DataView(dbf.buffer).getUint16(10, true)} bytes, but the file holds ${dbf.length} bytes`);
 	});
 });

@@ -9,7 +9,7 @@ import { parseDbf, parseShp } from 'shpjs';
 import { isPlausibleDegrees, makeToWgs84, type ToWgs84 } from './crs';
 import { IngestError, toIssue, type IngestIssue } from './issues';
 import { cleanRing, findCrossings, pointInRing, signedArea2 } from './rings';
-import { dbfCodePage, shapefileParts } from './shapefile-points';
+import { dbfCodePage, dbfHeaderProblem, shapefileParts } from './shapefile-points';
 import { decodeBytes } from './text';
 import { looksLikeZip, unzipSafe } from './zip';
 
@@ -349,6 +349,8 @@ function readShapefile(file: string, entries: Map<string, Uint8Array>, opts: Bou
 	} catch (err) {
 		throw new IngestError(file, `'${parts.layer}.shp' could not be read (${err instanceof Error ? err.message : err})`);
 	}
+	const dbfProblem = dbfHeaderProblem(parts.dbf);
+	if (dbfProblem) throw new IngestError(file, `'${parts.layer}.dbf' ${dbfProblem}`);
 	try {
 		records = parseDbf(parts.dbf, dbfCodePage(parts.dbf, parts.cpg));
 	} catch (err) {

@@ -3,6 +3,7 @@
 // (an IngestError naming the file); anything else it throws, a case slower than the bound, or a
 // batch that grows memory past the cap is a bug.
 import { readFileSync } from 'node:fs';
+import { Worker } from 'node:worker_threads';
 import fc from 'fast-check';
 import { expect } from 'vitest';
 import { IngestError } from './issues';
@@ -23,12 +24,58 @@ export const HEAP_CAP_BYTES = 256 * 1024 * 1024;
 /** The generic wrapper toIssue() gives an exception that was not an IngestError: a crash. */
 export const CRASH_PREFIX = 'could not be read: ';
 
+/** A case still running after this long is a hang. The watchdog cannot interrupt a synchronous
+ * loop on this thread, so it kills the test process: the run fails instead of hanging. */
+export const HANG_MS = 20_000;
+
+/** FUZZ_SEED replays a run (the seed is printed with the counts and by the watchdog). */
+function seed(): number {
+	const n = Number(process.env.FUZZ_SEED);
+	return Number.isInteger(n) ? n : (Date.now() ^ (Math.random() * 0x7fffffff)) | 0;
+}
+
+// Shared with the watchdog thread: [0] case number, [1] 1 while a case runs.
+const WATCHDOG_JS = `
+const { workerData, parentPort } = require('node:worker_threads');
+const { writeSync } = require('node:fs');
+const cell = new Int32Array(workerData.sab);
+let last = -1, since = Date.now();
+setInterval(() => {
+	const n = Atomics.load(cell, 0), running = Atomics.load(cell, 1);
+	if (n !== last || !running) { last = n; since = Date.now(); return; }
+	if (Date.now() - since > workerData.hangMs) {
+		// writeSync: a worker's process.stderr goes through the blocked main thread.
+		writeSync(2, 'fuzz watchdog: case ' + n + ' of ' + workerData.name + ' (seed ' + workerData.seed + ') ran over ' + workerData.hangMs + ' ms; killing the test run\\n');
+		process.kill(process.pid, 'SIGKILL');
+	}
+}, 250);
+parentPort.postMessage('ready');
+`;
+
+/** Starts the watchdog and waits until it runs: a worker needs this thread's event loop to
+ * start, which a hung case would never give it. */
+async function startWatchdog(name: string, seedValue: number) {
+	const sab = new SharedArrayBuffer(8);
+	const cell = new Int32Array(sab);
+	const worker = new Worker(WATCHDOG_JS, { eval: true, execArgv: [], workerData: { sab, name, seed: seedValue, hangMs: HANG_MS } });
+	await new Promise<void>((resolve, reject) => {
+		worker.once('message', () => resolve());
+		worker.once('error', reject);
+	});
+	worker.unref();
+	return {
+		begin: () => (Atomics.add(cell, 0, 1), Atomics.store(cell, 1, 1)),
+		end: () => Atomics.store(cell, 1, 0),
+		stop: () => worker.terminate()
+	};
+}
+
 export type Outcome = { kind: 'ok' } | { kind: 'problem'; message: string };
 
 /** Runs one case under the time bound. Returns how it ended; throws (failing the property) when
  * the reader threw something that is not an IngestError or took longer than CASE_MS. Every
  * reader here is synchronous or resolves without I/O, so the deadline is checked when the call
- * returns; a reader that never returns is stopped by vitest's testTimeout instead. */
+ * returns; a reader that never returns is caught by the watchdog thread (HANG_MS) instead. */
 export async function bounded(file: string, run: () => unknown): Promise<Outcome> {
 	const started = performance.now();
 	let outcome: Outcome;
@@ -59,16 +106,27 @@ export async function fuzz<T>(
 	gc?.();
 	const before = process.memoryUsage().heapUsed;
 	let peak = before;
-	await fc.assert(
-		fc.asyncProperty(arb, async (value) => {
-			const outcome = await check(value);
-			counts[outcome.kind]++;
-			peak = Math.max(peak, process.memoryUsage().heapUsed);
-		}),
-		{ numRuns: runs(numRuns) }
-	);
+	const seedValue = seed();
+	const watchdog = await startWatchdog(name, seedValue);
+	try {
+		await fc.assert(
+			fc.asyncProperty(arb, async (value) => {
+				watchdog.begin();
+				try {
+					const outcome = await check(value);
+					counts[outcome.kind]++;
+				} finally {
+					watchdog.end();
+				}
+				peak = Math.max(peak, process.memoryUsage().heapUsed);
+			}),
+			{ numRuns: runs(numRuns), seed: seedValue }
+		);
+	} finally {
+		await watchdog.stop();
+	}
 	const growth = peak - before;
-	console.log(`fuzz ${name}: ${counts.ok} read, ${counts.problem} refused with a problem, heap peak +${Math.round(growth / 1048576)} MB`);
+	console.log(`fuzz ${name}: ${counts.ok} read, ${counts.problem} refused with a problem, heap peak +${Math.round(growth / 1048576)} MB (seed ${seedValue})`);
 	expect(growth, `heap grew ${Math.round(growth / 1048576)} MB`).toBeLessThan(HEAP_CAP_BYTES);
 }
 

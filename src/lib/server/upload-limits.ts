@@ -6,8 +6,7 @@
 // zip inflation (DEFAULT_ZIP_LIMITS, lib/ingest/zip.ts), whole-file logs (MAX_WHOLE_FILE_BYTES,
 // lib/ingest/log.ts), note photos (PHOTO_MAX_BYTES, lib/notes/photo.ts).
 
-/** Boundary and zone files: a farm's fields or a field's zones are far under this. */
-export const BOUNDARY_FILE_MAX_BYTES = 25 * 1024 * 1024;
+export { BOUNDARY_FILE_MAX_BYTES } from '$lib/ingest/limits';
 /** Room for the form's other fields (names, rates, ticks) beside the file. */
 export const FORM_OVERHEAD_BYTES = 256 * 1024;
 
