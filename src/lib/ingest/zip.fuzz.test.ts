@@ -11,7 +11,9 @@ import { bounded, byteMutation, fuzz, mutateBytes } from './fuzz-support';
 import { unzipSafe } from './zip';
 
 const CAP = 4 * 1024 * 1024;
-const entryName = fc.oneof(fc.constantFrom('a.shp', 'a.dbf', 'dir/', 'dir/b.prj', '../x', '/abs', 'C:x', 'ü.txt'), fc.string({ minLength: 1, maxLength: 12 }));
+// '__proto__' is left out: fflate's zipSync, which builds the test archives, reads options off
+// the entry object and cannot take that key (a limit of the builder, not of the reader).
+const entryName = fc.oneof(fc.constantFrom('a.shp', 'a.dbf', 'dir/', 'dir/b.prj', '../x', '/abs', 'C:x', 'ü.txt'), fc.string({ minLength: 1, maxLength: 12 })).filter((k) => k !== '__proto__');
 const entryData = fc.oneof(fc.uint8Array({ maxLength: 300 }), fc.integer({ min: 0, max: 2_000_000 }).map((n) => new Uint8Array(n)));
 /** Overwrite a little-endian field at a random offset: a header field that lies. */
 const lie = fc.record({ at: fc.nat(), width: fc.constantFrom(2, 4), value: fc.oneof(fc.constantFrom(0, 0xffff, 0xffffffff, 0x7fffffff), fc.nat()) });
