@@ -133,6 +133,32 @@ test('a bad file gets a message naming it; projected coordinates ask for an EPSG
 	await expect(page.getByTestId('import-warnings')).toContainText('EPSG:32611');
 });
 
+test('an over-size boundary file and a zip bomb are refused with a sentence; nothing is imported', async ({ page }) => {
+	await signIn(page, people.manager);
+	await page.goto('/tallowgrass/fields/import');
+	// 26 MB: over the 25 MB boundary limit (src/lib/ingest/limits.ts). The page says so without
+	// sending it (the server's own refusal is tested in src/lib/server/upload-limits.test.ts).
+	const posts: string[] = [];
+	page.on('request', (r) => void (r.method() === 'POST' && posts.push(r.url())));
+	const big = Buffer.alloc(26 * 1024 * 1024, 0x20);
+	await page.getByLabel('Boundary file').setInputFiles({ name: 'huge.geojson', mimeType: 'application/geo+json', buffer: big });
+	await page.getByRole('button', { name: 'Preview' }).click();
+	await expect(page.getByTestId('import-error')).toHaveText('huge.geojson is 26.0 MB; a boundary file may be at most 25 MB.');
+	expect(posts).toEqual([]);
+	await page.screenshot({ path: 'tests/screenshots/fields-import-too-large-desktop.png', fullPage: true });
+	await page.setViewportSize({ width: 390, height: 844 });
+	await page.screenshot({ path: 'tests/screenshots/fields-import-too-large-phone.png', fullPage: true });
+	await page.setViewportSize({ width: 1280, height: 800 });
+
+	// 64 MB of zeros deflated to about 64 kB.
+	const { zipSync } = await import('fflate');
+	const bomb = zipSync({ 'bomb.shp': new Uint8Array(64 * 1024 * 1024), 'bomb.dbf': new Uint8Array(10) }, { level: 9 });
+	await page.getByLabel('Boundary file').setInputFiles({ name: 'bomb.zip', mimeType: 'application/zip', buffer: Buffer.from(bomb) });
+	await page.getByRole('button', { name: 'Preview' }).click();
+	await expect(page.getByTestId('import-error')).toContainText(/bomb\.zip: zip entry 'bomb\.shp' expands \d+ times \(over 100x\); refused as a possible zip bomb/);
+	await expect(page.getByTestId('import-feature')).toHaveCount(0);
+});
+
 test('a manager draws a field on the map, then renames and deletes it', async ({ page }) => {
 	await page.setViewportSize(viewports.desktop);
 	await signIn(page, people.manager);

@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import geodesic from 'geographiclib-geodesic';
 import type { MultiPolygon, Polygon, Position } from 'geojson';
+import { unzipSync, zipSync } from 'fflate';
 import { describe, expect, test } from 'vitest';
 import { parseBoundaryFile, type BoundaryResult } from './boundaries';
 import { utf8 } from './testing';
@@ -172,5 +173,54 @@ describe('invalid and odd polygons', () => {
 		expect(msg(parseBoundaryFile('b.kml', utf8('<kml><Document>')))).toMatch(/^is not well-formed XML \(unclosed xml tag/);
 		expect(msg(parseBoundaryFile('b.txt', utf8('hello')))).toMatch(/is not a boundary file/);
 		expect(msg(parseBoundaryFile('b.geojson', new Uint8Array()))).toBe('is empty');
+	});
+
+	// Shrunk counterexamples from boundaries.fuzz.test.ts (these crashed with raw TypeErrors).
+	test('malformed polygon coordinates are refused naming the feature', () => {
+		const msg = (geometry: unknown) => {
+			const r = parseBoundaryFile('b.geojson', utf8(JSON.stringify({ type: 'FeatureCollection', features: [{ type: 'Feature', properties: { name: 'Invented' }, geometry }] })));
+			return r.ok ? 'ok' : r.error;
+		};
+		expect(msg({ type: 'Polygon', coordinates: [] })).toEqual({ file: 'b.geojson', row: 1, column: null, message: "feature 1 ('Invented'): a polygon has no rings" });
+		expect(msg({ type: 'Polygon', coordinates: 'x' })).toMatchObject({ message: "feature 1 ('Invented'): a polygon has no rings" });
+		expect(msg({ type: 'MultiPolygon', coordinates: [[[[0, 0], [1, 0], [1, 1], [0, 0]]], [[[0, 0], ['1', 0]]]] })).toMatchObject({ message: "feature 1 ('Invented'): part 2: ring 0 has a point that is not a pair of numbers" });
+		expect(msg({ type: 'GeometryCollection', geometries: null })).toMatchObject({ message: "feature 1 ('Invented'): the GeometryCollection has no list of geometries" });
+		let deep: unknown = { type: 'Polygon', coordinates: [square] };
+		for (let d = 0; d < 12; d++) deep = { type: 'GeometryCollection', geometries: [deep] };
+		expect(msg(deep)).toMatchObject({ message: "feature 1 ('Invented'): GeometryCollections are nested more than 8 deep" });
+		// Two levels of nesting still read.
+		expect(msg({ type: 'GeometryCollection', geometries: [{ type: 'GeometryCollection', geometries: [{ type: 'Polygon', coordinates: [square] }] }] })).toBe('ok');
+	});
+
+	// Found while fuzzing: a ring of many points in straight north-south lines took 7 s at 128,000
+	// points (crossing checks go quadratic), so a 25 MB file could hold a server for minutes.
+	test('polygons and files with too many points are refused with the count', () => {
+		const ring = (n: number, dx = 0) => {
+			const pts: number[][] = [];
+			for (let i = 0; i < n; i++) pts.push([-98.52 + dx, 38.51 + (0.008 * i) / n]);
+			for (let i = 0; i < n; i++) pts.push([-98.51 + dx, 38.518 - (0.008 * i) / n]);
+			return [...pts, pts[0]];
+		};
+		const file = (rings: number[][][]) => utf8(JSON.stringify({ type: 'FeatureCollection', features: rings.map((r) => ({ type: 'Feature', properties: {}, geometry: { type: 'Polygon', coordinates: [r] } })) }));
+		const big = parseBoundaryFile('b.geojson', file([ring(10_000)]));
+		expect(big.ok || big.error).toEqual({ file: 'b.geojson', row: 1, column: null, message: 'feature 1: a polygon has 20001 points; at most 20000 are read per polygon (simplify it first)' });
+		const many = parseBoundaryFile('b.geojson', file(Array.from({ length: 21 }, (_, j) => ring(5_000, j * 0.02))));
+		expect(many.ok || many.error.message).toBe('holds more than 200000 boundary points; at most that many are read per file (split or simplify it)');
+		const started = performance.now();
+		expect(parseBoundaryFile('b.geojson', file([ring(9_999)])).ok).toBe(true);
+		expect(performance.now() - started).toBeLessThan(5_000);
+	});
+
+	// Shrunk from boundaries.fuzz.test.ts (seed 519571944, case 76): bytes spliced into the .dbf
+	// made its header declare 33,623,166 records; shpjs looped over them for 20 s.
+	test('a .dbf whose header declares more records than the file holds is refused at once', () => {
+		const entries = unzipSync(new Uint8Array(readFileSync('sample-data/fixtures/boundary-utm14n.zip')));
+		const name = Object.keys(entries).find((k) => k.endsWith('.dbf'))!;
+		const dbf = entries[name].slice();
+		new DataView(dbf.buffer).setUint32(4, 33_623_166, true);
+		const started = performance.now();
+		const r = parseBoundaryFile('fields.zip', zipSync({ ...entries, [name]: dbf }));
+		expect(performance.now() - started).toBeLessThan(2_000);
+		expect(r.ok || r.error.message).toBe(`'fields_utm14n.dbf' is damaged: its header declares 33623166 records of ${new DataView(dbf.buffer).getUint16(10, true)} bytes, but the file holds ${dbf.length} bytes`);
 	});
 });

@@ -9,7 +9,7 @@ import { parseDbf, parseShp } from 'shpjs';
 import { isPlausibleDegrees, makeToWgs84, type ToWgs84 } from './crs';
 import { IngestError, toIssue, type IngestIssue } from './issues';
 import { cleanRing, findCrossings, pointInRing, signedArea2 } from './rings';
-import { dbfCodePage, shapefileParts } from './shapefile-points';
+import { dbfCodePage, dbfHeaderProblem, shapefileParts } from './shapefile-points';
 import { decodeBytes } from './text';
 import { looksLikeZip, unzipSafe } from './zip';
 
@@ -87,6 +87,20 @@ function parseOrThrow(file: string, bytes: Uint8Array, opts: BoundaryOptions): B
 	} else if (format === 'geojson') parsed = readGeojson(file, bytes, opts);
 	else parsed = readXml(file, format, bytes);
 
+	// Files from elsewhere can hold anything where coordinates belong; refuse those naming the
+	// feature before any geometry code sees them.
+	let vertices = 0;
+	parsed.raw.forEach((f, i) => {
+		const problem = shapeProblem(f.geometry, 0);
+		if (problem) throw new IngestError(file, `${labelOf(propsOf(f.properties), i + 1)}: ${problem}`, { row: i + 1 });
+		for (const rings of polygonsOf(f.geometry) ?? []) {
+			const n = rings.reduce((sum, ring) => sum + ring.length, 0);
+			vertices += n;
+			if (n > MAX_POLYGON_VERTICES)
+				throw new IngestError(file, `${labelOf(propsOf(f.properties), i + 1)}: a polygon has ${n} points; at most ${MAX_POLYGON_VERTICES} are read per polygon (simplify it first)`, { row: i + 1 });
+		}
+		if (vertices > MAX_FILE_VERTICES) throw new IngestError(file, `holds more than ${MAX_FILE_VERTICES} boundary points; at most that many are read per file (split or simplify it)`);
+	});
 	const warnings = [...parsed.warnings];
 	let toWgs84 = parsed.toWgs84 ?? null;
 	if (!parsed.crsKnown) {
@@ -148,6 +162,54 @@ function firstOutOfDegrees(raw: Raw[]): Position | null {
 	}
 	return null;
 }
+
+/** Checking a ring for crossings costs up to the square of its points (many points in a
+ * straight north-south line defeat the sweep), so outlines are bounded. Real boundaries, even
+ * walked with GPS at one point a second, hold a few thousand (common practice, no source);
+ * at these bounds the worst case reads in about 2 s on the test machine. */
+export const MAX_POLYGON_VERTICES = 20_000;
+export const MAX_FILE_VERTICES = 200_000;
+
+/** Deepest GeometryCollection nesting read; real files do not nest them at all. */
+const MAX_COLLECTION_DEPTH = 8;
+
+/** Why a polygon-bearing geometry is malformed (coordinates not nested lists of number pairs, a
+ * polygon without rings, collections nested too deep), or null. Other geometry types are left
+ * for the caller to skip. */
+function shapeProblem(g: unknown, depth: number): string | null {
+	if (g === null || g === undefined) return null;
+	if (typeof g !== 'object' || Array.isArray(g)) return 'the geometry is not an object';
+	const { type, coordinates, geometries } = g as { type?: unknown; coordinates?: unknown; geometries?: unknown };
+	const isPosition = (p: unknown) => Array.isArray(p) && p.length >= 2 && Number.isFinite(p[0]) && Number.isFinite(p[1]);
+	const polygonProblem = (rings: unknown): string | null => {
+		if (!Array.isArray(rings) || rings.length === 0) return 'a polygon has no rings';
+		for (let r = 0; r < rings.length; r++) {
+			if (!Array.isArray(rings[r])) return `ring ${r} is not a list of points`;
+			if (!rings[r].every(isPosition)) return `ring ${r} has a point that is not a pair of numbers`;
+		}
+		return null;
+	};
+	if (type === 'Polygon') return polygonProblem(coordinates);
+	if (type === 'MultiPolygon') {
+		if (!Array.isArray(coordinates)) return 'the MultiPolygon coordinates are not a list of polygons';
+		for (let k = 0; k < coordinates.length; k++) {
+			const problem = polygonProblem(coordinates[k]);
+			if (problem) return `part ${k + 1}: ${problem}`;
+		}
+		return null;
+	}
+	if (type === 'GeometryCollection') {
+		if (!Array.isArray(geometries)) return 'the GeometryCollection has no list of geometries';
+		if (depth >= MAX_COLLECTION_DEPTH) return `GeometryCollections are nested more than ${MAX_COLLECTION_DEPTH} deep`;
+		for (const part of geometries) {
+			const problem = shapeProblem(part, depth + 1);
+			if (problem) return problem;
+		}
+	}
+	return null;
+}
+
+const propsOf = (p: unknown): Record<string, unknown> => (p && typeof p === 'object' && !Array.isArray(p) ? (p as Record<string, unknown>) : {});
 
 /** Polygon and MultiPolygon as lists of polygons; collections of polygons too; else null. */
 function polygonsOf(g: Geometry | null): Position[][][] | null {
@@ -259,8 +321,8 @@ function readGeojson(file: string, bytes: Uint8Array, opts: BoundaryOptions): Pa
 	}
 	const raw: Raw[] = [];
 	if (json?.type === 'FeatureCollection' && Array.isArray(json.features))
-		for (const f of json.features as Feature[]) raw.push({ properties: f?.properties ?? {}, geometry: f?.geometry ?? null });
-	else if (json?.type === 'Feature') raw.push({ properties: (json.properties as Record<string, unknown>) ?? {}, geometry: (json.geometry as Geometry) ?? null });
+		for (const f of json.features as Feature[]) raw.push({ properties: propsOf(f?.properties), geometry: f?.geometry ?? null });
+	else if (json?.type === 'Feature') raw.push({ properties: propsOf(json.properties), geometry: (json.geometry as Geometry) ?? null });
 	else if (typeof json?.type === 'string' && 'coordinates' in json || json?.type === 'GeometryCollection') raw.push({ properties: {}, geometry: json as unknown as Geometry });
 	else throw new IngestError(file, 'is JSON but not GeoJSON (no FeatureCollection, Feature or geometry)');
 	const warnings: string[] = [];
@@ -287,6 +349,8 @@ function readShapefile(file: string, entries: Map<string, Uint8Array>, opts: Bou
 	} catch (err) {
 		throw new IngestError(file, `'${parts.layer}.shp' could not be read (${err instanceof Error ? err.message : err})`);
 	}
+	const dbfProblem = dbfHeaderProblem(parts.dbf);
+	if (dbfProblem) throw new IngestError(file, `'${parts.layer}.dbf' ${dbfProblem}`);
 	try {
 		records = parseDbf(parts.dbf, dbfCodePage(parts.dbf, parts.cpg));
 	} catch (err) {

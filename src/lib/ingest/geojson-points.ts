@@ -29,10 +29,24 @@ export function attributeNamesOf(props: (Record<string, unknown> | null | undefi
 
 export function pointOf(geometry: Geometry | null | undefined): [number, number] | null {
 	if (!geometry) return null;
-	if (geometry.type === 'Point') return [geometry.coordinates[0], geometry.coordinates[1]];
-	if (geometry.type === 'MultiPoint' && geometry.coordinates.length === 1)
-		return [geometry.coordinates[0][0], geometry.coordinates[0][1]];
+	if (geometry.type === 'Point') return positionOf(geometry.coordinates);
+	if (geometry.type === 'MultiPoint' && Array.isArray(geometry.coordinates) && geometry.coordinates.length === 1)
+		return positionOf(geometry.coordinates[0]);
 	return null;
+}
+
+/** A position only when the file really holds two numbers there (JSON from elsewhere may not). */
+function positionOf(p: unknown): [number, number] | null {
+	return Array.isArray(p) && typeof p[0] === 'number' && typeof p[1] === 'number' ? [p[0], p[1]] : null;
+}
+
+/** Why a point geometry has no usable position, or null when it has one. */
+function badPointReason(geometry: Geometry): string | null {
+	if (geometry.type !== 'Point' && geometry.type !== 'MultiPoint') return null;
+	if (pointOf(geometry)) return null;
+	if (geometry.type === 'MultiPoint' && Array.isArray(geometry.coordinates) && geometry.coordinates.length !== 1)
+		return `is a MultiPoint of ${geometry.coordinates.length} points; an as-applied log holds one point per feature`;
+	return `is a ${geometry.type} whose coordinates are not two numbers`;
 }
 
 /** Reads GeoJSON text into a table of point features; throws IngestError when it is not one. */
@@ -45,6 +59,8 @@ export function geojsonPointTable(file: string, bytes: Uint8Array): PointTable {
 	} catch (err) {
 		throw new IngestError(file, `is not valid JSON (${err instanceof Error ? err.message : err})`);
 	}
+	if (json === null || typeof json !== 'object' || Array.isArray(json))
+		throw new IngestError(file, 'is not a GeoJSON FeatureCollection or Feature');
 	const obj = json as Partial<FeatureCollection> & Partial<Feature> & { crs?: { properties?: { name?: string } } };
 	const features: Feature[] =
 		obj.type === 'FeatureCollection' && Array.isArray(obj.features)
@@ -62,9 +78,11 @@ export function geojsonPointTable(file: string, bytes: Uint8Array): PointTable {
 		crs = Number(epsg[1]);
 		warnings.push({ file, row: null, column: null, message: `names coordinate system EPSG:${crs} (an old GeoJSON "crs" member); positions were reprojected from it` });
 	}
+	const badPoint = features.findIndex((f) => f?.geometry && badPointReason(f.geometry));
+	if (badPoint >= 0) throw new IngestError(file, `feature ${badPoint + 1} ${badPointReason(features[badPoint].geometry!)}`, { row: badPoint + 1 });
 	const nonPoint = features.findIndex((f) => f?.geometry && !pointOf(f.geometry));
 	if (nonPoint >= 0)
-		throw new IngestError(file, `feature ${nonPoint + 1} is a ${features[nonPoint].geometry!.type}; an as-applied log holds points`, { row: nonPoint + 1 });
+		throw new IngestError(file, `feature ${nonPoint + 1} is a ${typeName(features[nonPoint].geometry)}; an as-applied log holds points`, { row: nonPoint + 1 });
 	const props = features.map((f) => f?.properties ?? {});
 	const attributeNames = attributeNamesOf(props);
 	return {
@@ -75,6 +93,11 @@ export function geojsonPointTable(file: string, bytes: Uint8Array): PointTable {
 		crs,
 		warnings
 	};
+}
+
+function typeName(geometry: unknown): string {
+	const type = (geometry as { type?: unknown })?.type;
+	return typeof type === 'string' ? type.slice(0, 40) : 'geometry without a type';
 }
 
 /** Values shown in the mapping preview: the first rows as strings. */

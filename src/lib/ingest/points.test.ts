@@ -98,4 +98,23 @@ describe(`point shapefile log written by GDAL ogr2ogr (${gdal})`, () => {
 		const r = await readLog('log.geojson', utf8(JSON.stringify(fc)), { time: null, position: null, spray: null });
 		expect(r.errors[0]).toEqual({ file: 'log.geojson', row: 1, column: null, message: 'feature 1 is a LineString; an as-applied log holds points' });
 	});
+
+	// Shrunk counterexamples from log.fuzz.test.ts (these threw raw TypeErrors before).
+	test('GeoJSON that is just null (or a number, or an array) is refused as not GeoJSON', async () => {
+		for (const text of ['null', '7', '[1,2]']) {
+			const r = await readLog('log.geojson', utf8(text), { time: null, position: null, spray: null });
+			expect(r.errors).toEqual([{ file: 'log.geojson', row: null, column: null, message: 'is not a GeoJSON FeatureCollection or Feature' }]);
+		}
+	});
+
+	test('a Point whose coordinates member is missing or not numbers names the feature', async () => {
+		const point = (geometry: unknown) => utf8(JSON.stringify({ type: 'FeatureCollection', features: [{ type: 'Feature', properties: {}, geometry: { type: 'Point', coordinates: [1, 2] } }, { type: 'Feature', properties: {}, geometry }] }));
+		const mapping = { time: null, position: { kind: 'geometry' as const }, spray: null };
+		let r = await readLog('log.geojson', point({ type: 'Point', 'coord#inates': [1, 2] }), mapping);
+		expect(r.errors[0]).toEqual({ file: 'log.geojson', row: 2, column: null, message: 'feature 2 is a Point whose coordinates are not two numbers' });
+		r = await readLog('log.geojson', point({ type: 'Point', coordinates: ['1', 2] }), mapping);
+		expect(r.errors[0].message).toBe('feature 2 is a Point whose coordinates are not two numbers');
+		r = await readLog('log.geojson', point({ type: 'MultiPoint', coordinates: [[1, 2], [3, 4]] }), mapping);
+		expect(r.errors[0].message).toBe('feature 2 is a MultiPoint of 2 points; an as-applied log holds one point per feature');
+	});
 });

@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { strToU8, zipSync } from 'fflate';
 import { describe, expect, test } from 'vitest';
 import { IngestError } from './issues';
@@ -66,5 +67,15 @@ describe('unzipSafe', () => {
 
 	test('refuses bytes that are not a zip', () => {
 		expectIngestError(() => unzipSafe('upload.zip', strToU8('time,lat,lon\n')), /is not a zip archive/);
+	});
+
+	// Shrunk counterexample from boundaries.fuzz.test.ts: 15 bytes cut from the middle of the
+	// central directory made the name/extra lengths point past the end (a raw RangeError before).
+	test('a central directory whose entry runs past the end of the file is called damaged', () => {
+		const zip = new Uint8Array(readFileSync('sample-data/fixtures/boundary-wgs84.zip'));
+		const cut = new Uint8Array(zip.length - 15);
+		cut.set(zip.subarray(0, 664));
+		cut.set(zip.subarray(679), 664);
+		expectIngestError(() => unzipSafe('upload.zip', cut), /^upload\.zip: has a damaged zip directory at entry \d+$/);
 	});
 });

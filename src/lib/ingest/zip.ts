@@ -63,7 +63,7 @@ function readCentralDirectory(file: string, bytes: Uint8Array): CentralEntry[] {
 		if (loc < 0 || view.getUint32(loc, true) !== 0x07064b50)
 			throw new IngestError(file, 'has a damaged zip64 directory');
 		const z64 = Number(view.getBigUint64(loc + 8, true));
-		if (z64 + 56 > bytes.length || view.getUint32(z64, true) !== 0x06064b50)
+		if (z64 + 56 > bytes.length || z64 < 0 || view.getUint32(z64, true) !== 0x06064b50)
 			throw new IngestError(file, 'has a damaged zip64 directory');
 		count = Number(view.getBigUint64(z64 + 32, true));
 		cdOffset = Number(view.getBigUint64(z64 + 48, true));
@@ -81,6 +81,9 @@ function readCentralDirectory(file: string, bytes: Uint8Array): CentralEntry[] {
 		const extraLen = view.getUint16(at + 30, true);
 		const commentLen = view.getUint16(at + 32, true);
 		let localOffset = view.getUint32(at + 42, true);
+		// The variable parts must lie inside the file; a cut or spliced archive puts them past its end.
+		if (at + 46 + nameLen + extraLen + commentLen > bytes.length)
+			throw new IngestError(file, `has a damaged zip directory at entry ${n + 1}`);
 		const nameBytes = bytes.subarray(at + 46, at + 46 + nameLen);
 		// Bit 11 marks UTF-8 names; otherwise CP437, read here as Latin-1 (close enough for names).
 		const name = new TextDecoder(flags & 0x800 ? 'utf-8' : 'windows-1252').decode(nameBytes);
@@ -92,9 +95,16 @@ function readCentralDirectory(file: string, bytes: Uint8Array): CentralEntry[] {
 			const len = view.getUint16(e + 2, true);
 			if (id === 1) {
 				let p = e + 4;
-				if (size === 0xffffffff) (size = Number(view.getBigUint64(p, true))), (p += 8);
-				if (compressedSize === 0xffffffff) (compressedSize = Number(view.getBigUint64(p, true))), (p += 8);
-				if (localOffset === 0xffffffff) localOffset = Number(view.getBigUint64(p, true));
+				const big = () => {
+					if (p + 8 > Math.min(e + 4 + len, extraEnd))
+						throw new IngestError(file, `has a damaged zip64 field at entry ${n + 1}`);
+					const v = Number(view.getBigUint64(p, true));
+					p += 8;
+					return v;
+				};
+				if (size === 0xffffffff) size = big();
+				if (compressedSize === 0xffffffff) compressedSize = big();
+				if (localOffset === 0xffffffff) localOffset = big();
 			}
 			e += 4 + len;
 		}

@@ -13,6 +13,7 @@ import { may, type Actor } from '$lib/server/auth/guard';
 import { record } from '$lib/server/audit';
 import { putPhoto, readPhoto, removePhoto } from '$lib/server/storage/photo-store';
 import { bodyProblem, photoProblem, sniffPhotoType, PHOTO_MAX_BYTES } from '$lib/notes/photo';
+import { readFormWithin } from '$lib/server/upload-limits';
 
 export type NoteView = {
 	id: string;
@@ -363,30 +364,9 @@ export const NOTE_FORM_MAX_BYTES = PHOTO_MAX_BYTES + 256 * 1024;
  * declared length first and on the bytes as they arrive, so a huge upload is never held whole.
  */
 export async function readNoteForm(request: Request): Promise<FormData | { tooLarge: string }> {
-	const tooLarge = { tooLarge: `The note is too large: a photo may be at most ${PHOTO_MAX_BYTES / 1024 / 1024} MB.` };
-	const declared = Number(request.headers.get('content-length'));
-	if (declared > NOTE_FORM_MAX_BYTES) return tooLarge;
-	if (!request.body) return await request.formData();
-	const chunks: Uint8Array[] = [];
-	let size = 0;
-	const reader = request.body.getReader();
-	for (;;) {
-		const { done, value } = await reader.read();
-		if (done) break;
-		size += value.length;
-		if (size > NOTE_FORM_MAX_BYTES) {
-			await reader.cancel();
-			return tooLarge;
-		}
-		chunks.push(value);
-	}
-	const body = new Uint8Array(size);
-	let at = 0;
-	for (const c of chunks) {
-		body.set(c, at);
-		at += c.length;
-	}
-	return await new Response(body, { headers: { 'content-type': request.headers.get('content-type') ?? '' } }).formData();
+	const read = await readFormWithin(request, { maxBytes: NOTE_FORM_MAX_BYTES, maxFiles: 1, what: 'a note' });
+	if ('form' in read) return read.form;
+	return { tooLarge: read.status === 413 ? `The note is too large: a photo may be at most ${PHOTO_MAX_BYTES / 1024 / 1024} MB.` : `${read.refused} Attach one photo.` };
 }
 
 async function photoFrom(form: FormData): Promise<PhotoUpload | null> {

@@ -5,10 +5,12 @@ import * as fields from '$lib/server/fields';
 import { checkBoundary } from '$lib/geo/fields-boundary';
 import { formatIssue } from '$lib/ingest/issues';
 import { parseBoundaryFile } from '$lib/ingest/boundaries';
+import { BOUNDARY_FILE_MAX_BYTES, FORM_OVERHEAD_BYTES, readFormWithin } from '$lib/server/upload-limits';
 import type { Actions, PageServerLoad } from './$types';
 
-/** Boundary files are small; a farm's worth of fields is well under this. */
-const MAX_FILE_BYTES = 25 * 1024 * 1024;
+const MAX_FILE_BYTES = BOUNDARY_FILE_MAX_BYTES;
+/** The body is bounded before it is read whole; one boundary file per import. */
+const readForm = (request: Request) => readFormWithin(request, { maxBytes: BOUNDARY_FILE_MAX_BYTES + FORM_OVERHEAD_BYTES, maxFiles: 1, what: 'a boundary file' });
 
 export type PreviewFeature = {
 	index: number;
@@ -80,13 +82,17 @@ async function readUpload(data: FormData): Promise<Read> {
 export const actions: Actions = {
 	preview: async (event) => {
 		await requireRole(event, 'fields.edit');
-		const read = await readUpload(await event.request.formData());
+		const limited = await readForm(event.request);
+		if ('refused' in limited) return fail(limited.status, { stage: 'preview' as const, message: limited.refused, needsCrs: false, fileName: '' });
+		const read = await readUpload(limited.form);
 		if ('message' in read) return fail(400, { stage: 'preview' as const, ...read });
 		return { stage: 'preview' as const, preview: read.preview };
 	},
 	save: async (event) => {
 		const actor = await requireRole(event, 'fields.edit');
-		const data = await event.request.formData();
+		const limited = await readForm(event.request);
+		if ('refused' in limited) return fail(limited.status, { stage: 'save' as const, message: limited.refused, needsCrs: false, fileName: '' });
+		const data = limited.form;
 		const read = await readUpload(data);
 		if ('message' in read) return fail(400, { stage: 'save' as const, ...read });
 		const { preview } = read;

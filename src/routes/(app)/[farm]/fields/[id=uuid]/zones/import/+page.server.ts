@@ -4,12 +4,14 @@ import { requireRole } from '$lib/server/auth/guard';
 import * as fields from '$lib/server/fields';
 import { formatIssue } from '$lib/ingest/issues';
 import { parseBoundaryFile } from '$lib/ingest/boundaries';
+import { BOUNDARY_FILE_MAX_BYTES, FORM_OVERHEAD_BYTES, readFormWithin } from '$lib/server/upload-limits';
 import { createZones, previewZones, zoneFeatures } from '$lib/server/zones/zones';
 import { parseTargetRate } from '$lib/server/zones/forms';
 import type { Actions, PageServerLoad } from './$types';
 
-/** Zone files are small; a field's worth of zones is far under this. */
-const MAX_FILE_BYTES = 25 * 1024 * 1024;
+const MAX_FILE_BYTES = BOUNDARY_FILE_MAX_BYTES;
+/** The body is bounded before it is read whole; one zone file per import. */
+const readForm = (request: Request) => readFormWithin(request, { maxBytes: BOUNDARY_FILE_MAX_BYTES + FORM_OVERHEAD_BYTES, maxFiles: 1, what: 'a zone file' });
 
 export type ZonePreviewFeature = {
 	index: number;
@@ -75,13 +77,17 @@ async function readUpload(actor: Parameters<typeof previewZones>[0], fieldId: st
 export const actions: Actions = {
 	preview: async (event) => {
 		const actor = await requireRole(event, 'zones.edit');
-		const read = await readUpload(actor, event.params.id, await event.request.formData());
+		const limited = await readForm(event.request);
+		if ('refused' in limited) return fail(limited.status, { stage: 'preview' as const, message: limited.refused, needsCrs: false });
+		const read = await readUpload(actor, event.params.id, limited.form);
 		if ('message' in read) return fail(400, { stage: 'preview' as const, ...read });
 		return { stage: 'preview' as const, preview: read.preview };
 	},
 	save: async (event) => {
 		const actor = await requireRole(event, 'zones.edit');
-		const data = await event.request.formData();
+		const limited = await readForm(event.request);
+		if ('refused' in limited) return fail(limited.status, { stage: 'save' as const, message: limited.refused, needsCrs: false });
+		const data = limited.form;
 		const read = await readUpload(actor, event.params.id, data);
 		if ('message' in read) return fail(400, { stage: 'save' as const, ...read });
 		const { preview } = read;
