@@ -1,6 +1,7 @@
 // Shared by the crash checks (check-crash.ts, check-db-outage.ts): a fresh database, a farm to
 // upload into, the built app started the way scripts/e2e-server.sh starts it, and sign-in over HTTP.
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
 import { createWriteStream, existsSync } from 'node:fs';
 import { fieldGeometryColumns } from '../src/lib/geo/field-geometry';
 import { hashPassword } from '../src/lib/server/auth/password';
@@ -22,7 +23,8 @@ export function freshDatabase(name: string): string {
 	return url;
 }
 
-export const password = 'crash-check-password';
+/** The throwaway checks' sign-in: made fresh each run, so no credential sits in the source. */
+export const password = randomBytes(18).toString('base64url');
 
 /** A farm with a manager, the bench field, boom and a tank mix, so an uploaded bench log can be processed. */
 export async function makeFarm(db: Db, slug: string) {
